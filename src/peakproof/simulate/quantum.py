@@ -12,7 +12,10 @@ Two reductions keep the matrices small:
 
 * *Weak partners.*  Heteronuclear spins, and homonuclear groups cut off at a weak coupling,
   keep I_z as a good quantum number: each combination of their total M shifts the
-  frequencies of the strongly coupled spins by Σ J·M (the X approximation).
+  frequencies of the strongly coupled spins by Σ J·M (the X approximation).  For
+  heteronuclear partners and isolated groups this is exact to about J²/Δν; a partner that
+  is itself strongly coupled to others has mixed states, and lines that see it through a
+  cut coupling J can move by up to about J/2 (the note on the result says so).
 * *Magnetic equivalence.*  n equivalent spins combine into composite spins S with known
   multiplicities (A2 → S=1 once and S=0 once; A3 → 3/2 once, 1/2 twice); each combination
   of composite spins is simulated and added with its weight.
@@ -267,8 +270,12 @@ def quantum_spectrum(
                                           min_cut_ratio)
             labels = ", ".join(system.groups[k].label for k in cluster)
             if ratio is not None:
+                largest_cut = max(abs(system.j(a, b)) for a in cluster for b in cluster
+                                  if a < b and system.j(a, b) != 0.0
+                                  and system.coupling_ratio(a, b) >= ratio)
                 notes.append(f"cluster {labels} is larger than {max_spins} spins: couplings "
-                             f"with |Δν/J| ≥ {ratio:.3g} treated as weak")
+                             f"with |Δν/J| ≥ {ratio:.3g} treated as weak (X approximation; "
+                             f"lines may move by up to about {largest_cut / 2:.2g} Hz)")
         for piece in pieces:
             if _cluster_dimension(system, piece, reduce_equivalent) <= limit:
                 pairs.extend(_cluster_lines(system, piece, reduce_equivalent))
