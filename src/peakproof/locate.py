@@ -1,0 +1,126 @@
+"""Find the data blocks in running prose.
+
+A block starts at an NMR header, a subscripted δ, an HRMS or elemental-analysis item (reaching back
+over items such as mp or Rf written just before it in the same sentence) and runs to the end of
+the last data item: a blank line, a heading, or a full stop followed by a sentence of prose.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+_SUP = "\u00b9\u00b2\u00b3\u2070\u2074-\u2079"
+CORE_START = re.compile(
+    rf"(?<![\w.])(?:\d{{1,3}}|[{_SUP}]{{1,3}})\s?[A-Z][a-z]?\s?(?:\{{[^{{}}()]{{1,30}}\}}|\[[^\[\]]{{1,30}}\])?\s?(?:-\s?)?NMR(?![A-Za-z])"
+    r"|(?<![\w])[δd]\s?_?\{?[HCF]\}?\s?\((?=[^()]{0,60}MHz)"
+    r"|(?<![\w])(?:HR|High[\s\-]resolution\s)\s?-?\s?(?:(?:ESI|EI|CI|APCI|APPI|FAB|MALDI|DART|FD)\s?-?\s?)?(?:Q-?TOF\s?-?\s?|TOF\s?-?\s?)?MS(?![A-Za-z])"
+    r"|(?<![\w])Anal(?:ysis)?\.\s*(?:[Cc]alc|[Ff]ound)"
+    r"|(?<![\w])(?:Elemental\s+[Aa]nalysis|Microanalysis)\b"
+)
+OTHER_START = re.compile(
+    r"(?:^|(?<=[;,.]\s)|(?<=[;,]))\s*"
+    r"(?:(?:IR|FT-?IR|ATR-?IR|FTIR|mp|m\.p\.|Mp|M\.p\.|M\.P\.|MP|bp|b\.p\.|Rf|R_f|TLC|UV(?:[/\-]vis)?|LRMS|HPLC|Optical rotation|Specific rotation)(?![A-Za-z])|\[α\]|ν(?:max)?\s)"
+)
+_CONTINUE_WORDS = re.compile(
+    r"(?:Found|Calcd|Calc|Anal|Elemental|HRMS|HR|IR|FT|ATR|Rf|R_f|UV|MS|LRMS|Mp|M\.p|MP|TLC|HPLC|Microanalysis|Optical|Specific)(?![a-z])"
+)
+_HEADING_LINE = re.compile(r"\n[ \t]*(?:#{1,6}\s|\\(?:sub)*section|\*\*[A-Z0-9])")
+_LOOKS_LIKE_DATA = re.compile(r"[^.]{0,100}?(?:[δ=]|\bd\s?[-−]?\d|[-−]?\d+(?:[.,]\d+)?\s?(?:\(|,|;|$))", re.S)
+MARKER = re.compile(r"peakproof:\s*ignore\s+([A-Za-z0-9_\-]+(?:\s*,\s*[A-Za-z0-9_\-]+)*)")
+
+
+@dataclass(frozen=True, slots=True)
+class Located:
+    """A block's offsets in the document, and what the writer said about it."""
+
+    start: int
+    end: int
+    suppressed: tuple[str, ...] = ()
+
+
+def locate(text: str) -> list[Located]:
+    """Every data block in ``text``, in order, with its half-open offsets."""
+    blocks: list[Located] = []
+    pos = 0
+    n = len(text)
+    previous_end = 0
+    while pos < n:
+        m = CORE_START.search(text, pos)
+        if not m:
+            break
+        if m.group(0).endswith("NMR") and not _LOOKS_LIKE_DATA.match(text, m.end()):
+            pos = m.end()
+            continue  # "the 1H NMR spectrum showed…": prose, not data
+        start = _reach_back(text, m.start(), previous_end)
+        end = _block_end(text, m.start())
+        if end <= m.start():
+            pos = m.end()
+            continue
+        blocks.append(Located(start, end, _markers(text, previous_end, end)))
+        previous_end = end
+        pos = end
+    return blocks
+
+
+def _reach_back(text: str, core: int, floor: int) -> int:
+    """Include other items (mp, Rf, IR…) written in the same sentence just before the core item."""
+    window_start = max(floor, core - 400)
+    window = text[window_start:core]
+    # The sentence that holds the core item starts after the last full stop + space or blank line.
+    cut = max(window.rfind(". "), window.rfind("\n\n"), window.rfind(".\n"))
+    sentence_start = window_start + (cut + 2 if cut >= 0 else 0)
+    best = core
+    for m in OTHER_START.finditer(text, sentence_start, core):
+        best = m.start() + (len(m.group(0)) - len(m.group(0).lstrip()))
+        break
+    return best
+
+
+def _block_end(text: str, start: int) -> int:
+    depth = 0
+    i = start
+    n = len(text)
+    last_data = start
+    while i < n:
+        ch = text[i]
+        if ch in "([{":
+            depth += 1
+        elif ch in ")]}":
+            depth = max(0, depth - 1)
+        elif ch == "\n":
+            j = i + 1
+            while j < n and text[j] in " \t\r":
+                j += 1
+            if j < n and text[j] == "\n":
+                break  # blank line
+            if _HEADING_LINE.match(text, i):
+                break
+        elif ch == "." and depth == 0:
+            j = i + 1
+            if j >= n:
+                i += 1
+                last_data = i
+                break
+            if text[j] in " \t\r\n":
+                k = j
+                while k < n and text[k] in " \t\r\n":
+                    k += 1
+                if k >= n:
+                    last_data = i + 1
+                    break
+                nxt = text[k]
+                if nxt.isupper() and not (CORE_START.match(text, k) or _CONTINUE_WORDS.match(text, k)):
+                    last_data = i + 1
+                    break
+        if not ch.isspace():
+            last_data = i + 1
+        i += 1
+    return last_data
+
+
+def _markers(text: str, floor: int, end: int) -> tuple[str, ...]:
+    names: list[str] = []
+    for m in MARKER.finditer(text, floor, end):
+        names.extend(n.strip() for n in m.group(1).split(","))
+    return tuple(names)

@@ -1,0 +1,336 @@
+"""Read text into the model: locate blocks, repair them, parse them, recover from errors."""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import re
+import tempfile
+from functools import lru_cache
+from pathlib import Path
+
+from lark import Lark
+from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
+
+from .compounds import attach_compounds
+from .locate import CORE_START, OTHER_START, locate
+from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
+from .repair import Repaired, repair
+from .span import Diagnostic, LineIndex
+from .transform import BlockBuilder, Context
+
+GRAMMAR_DIR = Path(__file__).resolve().parent / "grammar"
+
+#: What each terminal means to a chemist, for "expected …" messages.
+EXPECTED_NAMES = {
+    "NUMBER": "a number such as 7.26",
+    "MULT": "a multiplicity (s, d, t, q, m, dd, br s…)",
+    "JLABEL": "a coupling constant (J = 8.4 Hz)",
+    "COUNT": "an integration such as 2H",
+    "FREE": "an assignment such as ArH",
+    "CLOSE": "a closing parenthesis ')'",
+    "OPEN": "an opening parenthesis '('",
+    "DETAIL_SEP": "a comma between details",
+    "LIST_SEP": "a comma between signals",
+    "COND_SEP": "a comma between conditions",
+    "HZ": "the unit Hz",
+    "J_EQ": "'='",
+    "J_AND": "'and'",
+    "FREQ": "a frequency such as 400 MHz",
+    "SOLVENT": "a solvent such as CDCl3",
+    "TEMP": "a temperature such as 298 K",
+    "DELTA": "δ",
+    "SPEC_HEAD": "a spectrum header such as 13C NMR",
+    "DELTA_HEAD": "a header such as δH",
+    "MS_START": "HRMS",
+    "EA_START": "an elemental analysis (Anal. Calcd for …)",
+    "OTHER_ITEM": "another item (IR, mp, Rf…)",
+    "BLOCK_END": "the end of the block",
+    "RANGE_DASH": "a range dash",
+    "RANGE_TO": "'to'",
+    "PPM": "ppm",
+    "ELEMENT": "an element symbol such as C",
+    "FOUND": "'found'",
+    "CALCD": "'calcd'",
+    "ION": "an ion such as [M+H]+",
+    "ION_FORMULA": "a formula such as C12H14O3Na",
+    "COLON": "':'",
+    "RATIO": "a ratio such as 4:1",
+    "COND_WORD": "a note",
+    "PERCENT": "'%'",
+    "MW_PAREN": "a molar mass in parentheses",
+    "METHOD_PAREN": "an ionisation method such as (ESI)",
+    "MZ": "m/z",
+    "MS_PUNCT": "punctuation",
+}
+
+
+def _grammar_files() -> list[Path]:
+    return sorted(GRAMMAR_DIR.glob("*.lark"))
+
+
+@lru_cache(maxsize=1)
+def _builder_and_parser() -> tuple[BlockBuilder, Lark]:
+    """The LALR parser with the transformer inside, built once and cached on disk."""
+    digest = hashlib.sha256()
+    for path in _grammar_files():
+        digest.update(path.name.encode())
+        digest.update(path.read_bytes())
+    import lark
+
+    digest.update(lark.__version__.encode())
+    cache_dir = Path(os.environ.get("PEAKPROOF_CACHE_DIR") or tempfile.gettempdir())
+    cache = cache_dir / f"peakproof-grammar-{digest.hexdigest()[:16]}.lark-cache"
+    builder = BlockBuilder()
+    options = dict(
+        parser="lalr",
+        lexer="contextual",
+        start=["block", "item_only", "head_only", "entry_only"],
+        transformer=builder,
+        maybe_placeholders=False,
+    )
+    grammar_path = GRAMMAR_DIR / "peaks.lark"
+    try:
+        parser = Lark.open(str(grammar_path), cache=str(cache), **options)
+    except (OSError, PermissionError):
+        parser = Lark.open(str(grammar_path), **options)
+    return builder, parser
+
+
+# ---- public entry points ---------------------------------------------------------------------
+def parse(text: str, *, path: str | None = None) -> Document:
+    """Read every data block in ``text``.  Never raises on bad input: problems become diagnostics."""
+    if not isinstance(text, str):
+        raise TypeError(f"parse() takes text (str), not {type(text).__name__}")
+    index = LineIndex(text)
+    blocks: list[Block] = []
+    diagnostics: list[Diagnostic] = []
+    for i, located in enumerate(locate(text)):
+        block, diags = parse_block(text, located.start, located.end, index)
+        blocks.append(_with(block, index=i, suppressed=located.suppressed))
+        diagnostics.extend(diags)
+    blocks = attach_compounds(text, blocks, index)
+    return Document(text=text, blocks=tuple(blocks), diagnostics=tuple(diagnostics), path=path)
+
+
+def _with(block: Block, **changes) -> Block:
+    from dataclasses import replace
+
+    return replace(block, **changes)
+
+
+def parse_block(text: str, start: int, end: int, index: LineIndex) -> tuple[Block, list[Diagnostic]]:
+    """Parse ``text[start:end]``; on a syntax error, read it piece by piece."""
+    builder, parser = _builder_and_parser()
+    raw = text[start:end]
+    repaired = repair(raw)
+    ctx = Context(start, repaired, index)
+    for r in repaired.repairs:
+        ctx.diagnostics.append(
+            Diagnostic(f"repair-{r.kind}", "note", r.message, index.span(start + r.start, start + r.end))
+        )
+    builder.ctx = ctx
+    try:
+        items = parser.parse(repaired.text, start="block")
+    except UnexpectedInput:
+        items = _recover(parser, builder, ctx)
+    finally:
+        builder.ctx = None
+    return _block(index.span(start, end), raw, items), ctx.diagnostics
+
+
+def _block(span, raw, items) -> Block:
+    spectra, ms, ea, others = [], [], [], []
+    for item in items:
+        if isinstance(item, Spectrum):
+            spectra.append(item)
+        elif isinstance(item, MassSpec):
+            ms.append(item)
+        elif isinstance(item, ElementalAnalysis):
+            ea.append(item)
+        elif isinstance(item, OtherItem):
+            others.append(item)
+    return Block(span=span, text=raw, spectra=tuple(spectra), mass_spec=tuple(ms),
+                 analyses=tuple(ea), others=tuple(others))
+
+
+# ---- recovery --------------------------------------------------------------------------------
+_ITEM_BOUNDARY = re.compile(
+    r"(?:^|(?<=[;,.])|(?<=[;,.]\s)|(?<=[;,.]\s\s))(?=\s*(?:" + CORE_START.pattern + "|" + OTHER_START.pattern[OTHER_START.pattern.index("(?:(?:"):] + "))"
+)
+
+
+def _recover(parser: Lark, builder: BlockBuilder, ctx: Context) -> list:
+    """Read a block that failed as a whole: item by item, then signal by signal."""
+    text = ctx.text
+    starts = sorted({m.start() for m in _ITEM_BOUNDARY.finditer(text)} | {0})
+    items: list = []
+    for a, b in zip(starts, starts[1:] + [len(text)]):
+        piece = text[a:b]
+        if not piece.strip():
+            continue
+        try:
+            items.extend(_parse_piece(parser, builder, ctx, a, piece, "item_only"))
+            continue
+        except UnexpectedInput as exc:
+            first_error = exc
+        spectrum = _recover_spectrum(parser, builder, ctx, a, piece)
+        if spectrum is not None:
+            items.append(spectrum)
+        else:
+            _syntax_error(ctx, first_error, a, piece)
+    return items
+
+
+def _parse_piece(parser, builder, ctx, offset, piece, start):
+    """Parse ``piece`` (at ``offset`` in the block) with positions kept block-relative."""
+    # Pad with spaces so token offsets are block offsets: cheap, and keeps the Context simple.
+    padded = " " * offset + piece
+    result = parser.parse(padded, start=start)
+    return result if isinstance(result, list) else [result]
+
+
+_SIGNAL_SEP = re.compile(r"[,;]")
+
+
+def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:
+    """Header, then each signal on its own; bad signals become diagnostics, good ones are kept."""
+    header_end = _header_end(piece)
+    if header_end is None:
+        return None
+    try:
+        head = _parse_piece(parser, builder, ctx, offset, piece[:header_end], "head_only")[0]
+    except UnexpectedInput as exc:
+        _syntax_error(ctx, exc, offset, piece)
+        return None
+    signals = []
+    for s, e in _split_top_level(piece, header_end):
+        chunk = piece[s:e]
+        if not chunk.strip() or chunk.strip() in {".", ";", ","}:
+            continue
+        try:
+            signals.extend(_parse_piece(parser, builder, ctx, offset + s, chunk, "entry_only")[0])
+        except UnexpectedInput as exc:
+            _syntax_error(ctx, exc, offset + s, chunk, skipped=True)
+    from dataclasses import replace
+
+    last = signals[-1].span if signals else head.span
+    return replace(head, signals=tuple(signals), span=ctx.index.span(head.span.start, last.end))
+
+
+_HEADER_RE = re.compile(
+    r"^\s*[;,.]?\s*(?:\S+?\s?(?:\{[^{}]*\}|\[[^\]]*\])?\s?-?\s?NMR(?:\s?spectrum)?|δ\s?_?\{?[HCFPBN]\}?)"
+)
+
+
+def _header_end(piece: str) -> int | None:
+    m = _HEADER_RE.match(piece)
+    if not m:
+        return None
+    i = m.end()
+    n = len(piece)
+    while True:
+        while i < n and piece[i] in " \t:":
+            i += 1
+        if i < n and piece[i] == "(":
+            depth = 0
+            j = i
+            while j < n:
+                if piece[j] == "(":
+                    depth += 1
+                elif piece[j] == ")":
+                    depth -= 1
+                    if depth == 0:
+                        break
+                j += 1
+            if j >= n:
+                return None
+            if re.match(r"\(\s?ppm\s?\)", piece[i : j + 1]):
+                i = j + 1
+                continue
+            i = j + 1
+            continue
+        dm = re.match(r"(?:δ|delta)\s?(?:_?\{?[HCFPBN]\}?(?![a-z]))?(?:\s?\(\s?ppm\s?\))?(?:\s?ppm)?\s?[=:]?", piece[i:])
+        if dm and dm.end():
+            i += dm.end()
+            continue
+        return i
+
+
+def _split_top_level(piece: str, start: int):
+    depth = 0
+    seg = start
+    for i in range(start, len(piece)):
+        ch = piece[i]
+        if ch == "(":
+            depth += 1
+        elif ch == ")":
+            depth = max(0, depth - 1)
+        elif ch in ",;" and depth == 0:
+            # a decimal comma ("7,26") is not a separator
+            if ch == "," and 0 < i < len(piece) - 1 and piece[i - 1].isdigit() and piece[i + 1].isdigit():
+                continue
+            yield seg, i
+            seg = i + 1
+    yield seg, len(piece)
+
+
+def _syntax_error(ctx: Context, exc: UnexpectedInput, offset: int, piece: str, skipped=False) -> None:
+    pos = getattr(exc, "pos_in_stream", None)
+    if pos is None:
+        token = getattr(exc, "token", None)
+        pos = getattr(token, "start_pos", None)
+    if pos is None or pos < offset:
+        pos = offset + len(piece.rstrip())
+    pos = min(pos, offset + len(piece))
+    if isinstance(exc, UnexpectedToken) and exc.token.type == "$END" or isinstance(exc, UnexpectedEOF):
+        what = "the text ends too early"
+        end = pos + 1
+    elif isinstance(exc, UnexpectedCharacters):
+        ch = ctx.text[pos : pos + 1]
+        what = f"unexpected {ch!r}"
+        end = pos + 1
+    else:
+        token = exc.token
+        what = f"unexpected {str(token).strip()!r}"
+        end = pos + max(1, len(str(token).rstrip()))
+    expected = _expected(exc)
+    hint = _hint(piece, exc, expected)
+    start_piece = offset + (len(piece) - len(piece.lstrip()))
+    end_piece = offset + len(piece.rstrip())
+    if skipped:
+        message = f"could not read this signal ({what}); it was skipped: {' '.join(piece.split())!r}"
+        span = ctx.span(start_piece, max(end_piece, start_piece + 1))
+        at = ctx.span(pos, max(end, pos + 1))
+        ctx.diagnostics.append(
+            Diagnostic("syntax", "error", message, at if at.start < span.end else span,
+                       expected=expected, hint=hint, data={"skipped": ctx.text[start_piece:end_piece]})
+        )
+    else:
+        message = f"could not read this item ({what}); it was skipped"
+        ctx.diagnostics.append(
+            Diagnostic("syntax", "error", message, ctx.span(pos, max(end, pos + 1)),
+                       expected=expected, hint=hint, data={"skipped": ctx.text[start_piece:end_piece]})
+        )
+
+
+def _expected(exc: UnexpectedInput) -> tuple[str, ...]:
+    names = getattr(exc, "expected", None) or getattr(exc, "allowed", None) or ()
+    out = []
+    for name in sorted(names):
+        label = EXPECTED_NAMES.get(str(name))
+        if label and label not in out:
+            out.append(label)
+    return tuple(out)
+
+
+def _hint(piece: str, exc: UnexpectedInput, expected) -> str:
+    if piece.count("(") > piece.count(")"):
+        return "a parenthesis is opened but not closed; add the missing ')'"
+    if piece.count(")") > piece.count("("):
+        return "there is a ')' without its '('"
+    if "a closing parenthesis ')'" in expected:
+        return "separate the details inside the parentheses with commas, and close them with ')'"
+    if re.search(r"\d\s*$", piece) and "the unit Hz" in expected:
+        return "write the coupling constant with its unit, e.g. J = 7.1 Hz"
+    return "compare with a well-formed signal such as 7.26 (d, J = 8.4 Hz, 2H)"

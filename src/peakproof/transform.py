@@ -1,0 +1,529 @@
+"""From Lark's callbacks straight to the model: no parse tree is kept.
+
+The transformer is handed to the LALR parser's constructor, so each rule becomes a model node the
+moment it is reduced.  Positions come from the tokens; a :class:`Context` turns them into spans in
+the user's original text (through the repair map and the document's line index).
+"""
+
+from __future__ import annotations
+
+import re
+
+from lark import Token, Transformer
+
+from .model import (
+    Coupling,
+    ElementalAnalysis,
+    MassSpec,
+    Multiplicity,
+    OtherItem,
+    Signal,
+    Spectrum,
+)
+from .repair import Repaired
+from .span import Diagnostic, LineIndex, Span
+from .vocabulary import (
+    DELTA_NUCLEUS,
+    coupling_label,
+    ion_text,
+    is_note,
+    multiplicity_parts,
+    nucleus_symbol,
+    number,
+    solvent_key,
+)
+
+
+class Context:
+    """Where the text being parsed sits in the document."""
+
+    __slots__ = ("base", "repaired", "index", "diagnostics", "text")
+
+    def __init__(self, base: int, repaired: Repaired, index: LineIndex):
+        self.base = base  # document offset of the parsed text's first original character
+        self.repaired = repaired
+        self.index = index
+        self.text = repaired.text
+        self.diagnostics: list[Diagnostic] = []
+
+    def span(self, start: int, end: int) -> Span:
+        r = self.repaired
+        if r.offsets is None:
+            return self.index.span(self.base + start, self.base + end)
+        return self.index.span(self.base + r.original(start), self.base + r.original_end(end))
+
+    def note(self, rule: str, message: str, start: int, end: int, hint: str = "") -> None:
+        self.diagnostics.append(Diagnostic(rule, "note", message, self.span(start, end), hint=hint))
+
+
+_SPEC_HEAD = re.compile(
+    r"^[;,.]?\s*(?P<mass>\d{1,3}|[\u00b9\u00b2\u00b3\u2070\u2074-\u2079]{1,3})(?P<gap>\s?)(?P<el>[A-Z][a-z]?)"
+    r"\s?(?:\{(?P<dec>[^{}]*)\}|\[(?P<dec2>[^\[\]]*)\])?"
+)
+_LEAD = re.compile(r"^[;,.]?\s*")
+_COUNT = re.compile(
+    r"^(?:(?P<mult>\d+)\s?[×x]\s?)?(?P<n>\d+(?:[.,]\d+)?)\s?(?P<nuc>Si|[HCFPDBN])(?P<each>\s?each)?$"
+)
+_REFERENCE = re.compile(r"TMS|Me4Si|Me₄Si|tetramethylsilane|ref|internal|standard|residual|DSS|TSP", re.I)
+_ROOM_T = re.compile(r"^(?:rt|r\.t\.|RT|room\s+temperature|ambient)$", re.I)
+_METHOD_IN_HEAD = re.compile(r"(ESI|EI|CI|APCI|APPI|FAB|MALDI|DART|FD)(?:\s?-?\s?((?:Q-?)?TOF))?([+\-]?)")
+
+
+def _lead(token: Token) -> int:
+    """Offset of a token's first character after the separator it absorbed."""
+    m = _LEAD.match(token.value)
+    return token.start_pos + (m.end() if m else 0)
+
+
+def _stripped_end(token: Token) -> int:
+    return token.start_pos + len(token.value.rstrip())
+
+
+class BlockBuilder(Transformer):
+    """Builds model nodes bottom-up while the LALR parser reduces."""
+
+    def __init__(self):
+        super().__init__(visit_tokens=False)
+        self.ctx: Context | None = None
+
+    # ---- signals -------------------------------------------------------------------------
+    def shift(self, c):
+        first, last = c[0], c[-1]
+        text = self.ctx.text[first.start_pos : last.end_pos]
+        if len(c) == 1:
+            return (number(first.value), None, text, first.start_pos, last.end_pos)
+        return (None, (number(first.value), number(last.value)), text, first.start_pos, last.end_pos)
+
+    def mult(self, c):
+        tok = c[0]
+        name, components, broad, apparent, kind, multiplier = multiplicity_parts(tok.value)
+        return Multiplicity(
+            name=name,
+            span=self.ctx.span(tok.start_pos, _stripped_end(tok)),
+            written=tok.value.strip(),
+            components=components,
+            broad=broad,
+            apparent=apparent,
+            kind=kind,
+            multiplier=multiplier,
+        )
+
+    def j_values(self, c):
+        return [t for t in c if t.type == "NUMBER"]
+
+    def j_labeled(self, c):
+        label_tok = c[0]
+        bonds, nuclei, label = coupling_label(label_tok.value)
+        values = c[-1]
+        span = self.ctx.span
+        return [
+            Coupling(
+                value=number(t.value),
+                span=span(label_tok.start_pos if i == 0 else t.start_pos, t.end_pos),
+                text=t.value.replace("\u2212", "-").replace(",", "."),
+                nuclei=nuclei,
+                bonds=bonds,
+                label=label,
+            )
+            for i, t in enumerate(values)
+        ]
+
+    def j_bare(self, c):
+        span = self.ctx.span
+        return [
+            Coupling(
+                value=number(t.value),
+                span=span(t.start_pos, t.end_pos),
+                text=t.value.replace("\u2212", "-").replace(",", "."),
+            )
+            for t in c[0]
+        ]
+
+    def count(self, c):
+        tok = c[0]
+        text = tok.value.strip()
+        m = _COUNT.match(" ".join(text.split()))
+        value = number(m.group("n")) * (int(m.group("mult")) if m.group("mult") else 1)
+        return ("count", value, m.group("nuc"), text, bool(m.group("each")),
+                tok.start_pos, _stripped_end(tok))
+
+    def free(self, c):
+        tok = c[0]
+        text = " ".join(tok.value.split())
+        return ("free", text, tok.start_pos, _stripped_end(tok))
+
+    def details(self, c):
+        mult = None
+        couplings: list[Coupling] = []
+        count = None
+        assignment: list[str] = []
+        notes: list[str] = []
+        for item in c:
+            if isinstance(item, Token):
+                continue
+            if isinstance(item, Multiplicity):
+                if mult is None:
+                    mult = item
+                else:
+                    notes.append(item.written)
+            elif isinstance(item, list):
+                couplings.extend(item)
+            elif item[0] == "count":
+                if count is None:
+                    count = item
+                else:
+                    notes.append(item[3])
+            elif item[0] == "free":
+                (notes if is_note(item[1]) else assignment).append(item[1])
+        return (mult, tuple(couplings), count, assignment, notes, c[0].start_pos, c[-1].end_pos)
+
+    def entry(self, c):
+        shift = c[0]
+        details = None
+        ppm = False
+        for item in c[1:]:
+            if isinstance(item, Token):
+                ppm = ppm or item.type == "PPM"
+            else:
+                details = item
+        return (shift, details)
+
+    def signal_list(self, c):
+        entries = [e for e in c if not isinstance(e, Token)]
+        return self._signals(entries)
+
+    def entry_only(self, c):
+        return self._signals([c[0]])
+
+    def _signals(self, entries):
+        signals: list[Signal] = []
+        span = self.ctx.span
+        pending: list = []  # entries without details, which a following "each" may claim
+        group_id = 0
+        for shift, details in entries:
+            if details is None:
+                pending.append(shift)
+                continue
+            mult, couplings, count, assignment, notes, d_start, d_end = details
+            members = [shift]
+            if pending:
+                take = 0
+                if mult is not None and mult.multiplier > 1:
+                    take = mult.multiplier - 1
+                elif count is not None and count[4]:
+                    take = len(pending)
+                elif mult is not None and mult.kind == "AB":
+                    take = 1
+                take = min(take, len(pending))
+                if take:
+                    members = pending[len(pending) - take :] + [shift]
+                    del pending[len(pending) - take :]
+            for lone in pending:
+                signals.append(self._bare_signal(lone))
+            pending = []
+            if len(members) > 1:
+                group_id += 1
+            for member in members:
+                value, rng, text, s_start, s_end = member
+                n = None
+                if count is not None:
+                    n = count[1] if (count[4] or len(members) == 1) else count[1] / len(members)
+                last = d_end if member is shift else s_end
+                signals.append(
+                    Signal(
+                        span=span(s_start, last),
+                        shift=value,
+                        range=rng,
+                        shift_text=text,
+                        shift_span=span(s_start, s_end),
+                        multiplicity=mult,
+                        couplings=couplings,
+                        count=n,
+                        count_nucleus=count[2] if count else None,
+                        count_text=count[3] if count else "",
+                        count_span=span(count[5], count[6]) if count else None,
+                        assignment=", ".join(assignment) if assignment else None,
+                        notes=tuple(notes),
+                        details_span=span(d_start, d_end),
+                        group=group_id if len(members) > 1 else 0,
+                    )
+                )
+        for lone in pending:
+            signals.append(self._bare_signal(lone))
+        return signals
+
+    def _bare_signal(self, shift):
+        value, rng, text, s_start, s_end = shift
+        sp = self.ctx.span(s_start, s_end)
+        return Signal(span=sp, shift=value, range=rng, shift_text=text, shift_span=sp)
+
+    # ---- spectrum header -------------------------------------------------------------------
+    def condition(self, c):
+        return list(c)
+
+    def conditions(self, c):
+        return [x for x in c if isinstance(x, list)]
+
+    def bare_conditions(self, c):
+        return [x for x in c if isinstance(x, list)]
+
+    def delta(self, c):
+        return ("delta", c[0])
+
+    def head_tail(self, c):
+        conditions: list = []
+        delta = None
+        for item in c:
+            if isinstance(item, list):
+                conditions.extend(item)
+            elif isinstance(item, tuple):
+                delta = item[1]
+        return (conditions, delta)
+
+    def head_only(self, c):
+        return self._spectrum(c, signals=[])
+
+    def spectrum(self, c):
+        return self._spectrum(c, signals=None)
+
+    def _spectrum(self, c, signals):
+        head = c[0]
+        conditions: list = []
+        delta = None
+        for item in c[1:]:
+            if isinstance(item, tuple) and len(item) == 2 and isinstance(item[0], list):
+                conditions, delta = item
+            elif isinstance(item, list) and item and isinstance(item[0], list):
+                conditions = item
+            elif isinstance(item, list) and (not item or isinstance(item[0], Signal)):
+                signals = item
+        if signals is None:
+            signals = []
+        ctx = self.ctx
+        start = _lead(head)
+        if head.type == "SPEC_HEAD":
+            m = _SPEC_HEAD.match(head.value)
+            nucleus = nucleus_symbol(m.group("mass")) + m.group("el")
+            dec = m.group("dec") or m.group("dec2")
+            decoupled = tuple(
+                nucleus_symbol(d) for d in re.split(r"\s*,\s*", dec.strip()) if d.strip()
+            ) if dec else ()
+            if m.group("gap") or (dec and " " in dec.strip()):
+                ctx.note("repair-superscript",
+                         f"read '{' '.join(head.value.split())}' as {nucleus} NMR "
+                         "(a superscript lost its place)", start, _stripped_end(head))
+        else:
+            letter = re.search(r"[HCFPBN]", head.value[head.value.index("δ") :]).group(0)
+            nucleus = DELTA_NUCLEUS[letter]
+            decoupled = ()
+        freq = freq_span = solvent = solvent_norm = solvent_span = temperature = reference = None
+        notes: list[str] = []
+        for cond in conditions:
+            words: list[Token] = []
+            for tok in cond:
+                kind = tok.type
+                if kind == "FREQ":
+                    freq = number(tok.value[: tok.value.index("M")].strip())
+                    freq_span = ctx.span(tok.start_pos, tok.end_pos)
+                elif kind == "SOLVENT":
+                    solvent = tok.value.strip()
+                    solvent_span = ctx.span(tok.start_pos, tok.end_pos)
+                elif kind == "RATIO" and solvent:
+                    solvent = f"{solvent} {tok.value.strip()}"
+                    solvent_span = ctx.span(solvent_span.start - ctx.base, tok.end_pos) if ctx.repaired.offsets is None else solvent_span
+                elif kind == "TEMP":
+                    value = tok.value.strip()
+                    t = number(re.match(r"[+\-\u2212]?\d+(?:[.,]\d+)?", value).group(0))
+                    temperature = t if value.endswith("K") else round(t + 273.15, 2)
+                else:
+                    words.append(tok)
+            if words:
+                phrase = " ".join(w.value for w in words)
+                if _ROOM_T.match(phrase):
+                    notes.append(phrase)
+                elif _REFERENCE.search(phrase):
+                    reference = phrase
+                else:
+                    notes.append(phrase)
+        if solvent:
+            solvent_norm = solvent_key(solvent)
+        end_tok = c[-1]
+        end = signals[-1].span.end - ctx.base if signals and ctx.repaired.offsets is None else None
+        last_pos = self._last_pos(c)
+        header_end = self._last_pos(c[:-1]) if signals else last_pos
+        return Spectrum(
+            span=ctx.span(start, last_pos),
+            nucleus=nucleus,
+            signals=tuple(signals),
+            decoupled=decoupled,
+            frequency_mhz=freq,
+            frequency_span=freq_span,
+            solvent=solvent,
+            solvent_normalized=solvent_norm,
+            solvent_span=solvent_span,
+            temperature_k=temperature,
+            reference=reference,
+            conditions=tuple(notes),
+            header_span=ctx.span(start, header_end),
+            header_text=ctx.text[start:header_end],
+            nucleus_span=ctx.span(start, _stripped_end(head)),
+        ) if True else (end_tok, end)
+
+    def _last_pos(self, items) -> int:
+        """End offset (parsed-text coordinates) of the last thing in ``items``."""
+        for item in reversed(items):
+            if isinstance(item, Token):
+                return _stripped_end(item)
+            if isinstance(item, Signal):
+                return self._unspan(item.span.end)
+            if isinstance(item, list) and item:
+                return self._last_pos(item)
+            if isinstance(item, tuple):
+                return self._last_pos(list(item))
+        return 0
+
+    def _unspan(self, doc_offset: int) -> int:
+        """Parsed-text offset of a document offset (inverse of the repair map)."""
+        ctx = self.ctx
+        target = doc_offset - ctx.base
+        offsets = ctx.repaired.offsets
+        if offsets is None:
+            return target
+        from bisect import bisect_left
+
+        return bisect_left(offsets, target)
+
+    # ---- mass spectra ---------------------------------------------------------------------
+    def mass_spec(self, c):
+        ctx = self.ctx
+        head = c[0]
+        method = None
+        m = _METHOD_IN_HEAD.search(head.value)
+        if m:
+            method = m.group(1) + (f"-{m.group(2)}" if m.group(2) else "") + m.group(3)
+        ion = ion_written = ion_span = None
+        formula = formula_span = None
+        calcd = found = None
+        calcd_text = found_text = ""
+        calcd_span = found_span = None
+        mode = None
+        for tok in c[1:]:
+            kind = tok.type
+            if kind == "METHOD_PAREN":
+                if method is None:
+                    inner = tok.value.strip()[1:-1].strip()
+                    if not inner.lower().startswith("m/z"):
+                        method = inner
+            elif kind == "ION":
+                if ion is None:
+                    ion_written = tok.value.strip()
+                    ion = ion_text(ion_written)
+                    ion_span = ctx.span(tok.start_pos, _stripped_end(tok))
+            elif kind == "CALCD":
+                mode = "calcd"
+            elif kind == "FOUND":
+                mode = "found"
+            elif kind == "ION_FORMULA":
+                if formula is None:
+                    formula, f_start, f_end = _bare_formula(tok)
+                    formula_span = ctx.span(f_start, f_end)
+            elif kind == "NUMBER":
+                value = number(tok.value)
+                if mode == "found" and found is None:
+                    found, found_text, found_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
+                elif mode == "calcd" and calcd is None:
+                    calcd, calcd_text, calcd_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
+                elif mode is None and found is None:
+                    found, found_text, found_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
+        return MassSpec(
+            span=ctx.span(_lead(head), self._last_pos(c)),
+            method=method,
+            ion=ion,
+            ion_written=ion_written,
+            formula=formula,
+            formula_span=formula_span,
+            calcd=calcd,
+            calcd_text=calcd_text,
+            calcd_span=calcd_span,
+            found=found,
+            found_text=found_text,
+            found_span=found_span,
+            ion_span=ion_span,
+        )
+
+    # ---- elemental analysis ---------------------------------------------------------------
+    def element_value(self, c):
+        el = c[0]
+        num = next(t for t in c[1:] if t.type == "NUMBER")
+        return (el.value, number(num.value), el.start_pos, num.end_pos)
+
+    def element_list(self, c):
+        return [x for x in c if isinstance(x, tuple)]
+
+    def analysis(self, c):
+        ctx = self.ctx
+        formula = formula_span = None
+        lists = [x for x in c if isinstance(x, list)]
+        for tok in c:
+            if isinstance(tok, Token) and tok.type == "ION_FORMULA":
+                formula, f_start, f_end = _bare_formula(tok, keep_charge=True)
+                formula_span = ctx.span(f_start, f_end)
+        calcd, found = lists[0], lists[1]
+        return ElementalAnalysis(
+            span=ctx.span(_lead(c[0]), found[-1][3]),
+            formula=formula,
+            formula_span=formula_span,
+            calcd=tuple((e, v) for e, v, _, _ in calcd),
+            found=tuple((e, v) for e, v, _, _ in found),
+            calcd_spans=tuple(ctx.span(s, e) for _, _, s, e in calcd),
+            found_spans=tuple(ctx.span(s, e) for _, _, s, e in found),
+        )
+
+    # ---- other items and the block ----------------------------------------------------------
+    def other(self, c):
+        tok = c[0]
+        start = _lead(tok)
+        text = tok.value[start - tok.start_pos :].rstrip()
+        return OtherItem(span=self.ctx.span(start, start + len(text)), kind=_other_kind(text), text=text)
+
+    def block(self, c):
+        return [x for x in c if not isinstance(x, Token)]
+
+    def item_only(self, c):
+        return [x for x in c if not isinstance(x, Token)]
+
+
+def _bare_formula(tok: Token, keep_charge: bool = False) -> tuple[str, int, int]:
+    """The formula inside ``[C12H14O3Na]+`` or ``C12H15O3+``, with its offsets."""
+    value = tok.value.rstrip()
+    start = tok.start_pos
+    text = value
+    if not keep_charge:
+        text = re.sub(r"(?:\d?[+\-−⁺⁻]|[•·])+$", "", text) if not text.endswith("]") else text
+        if text.startswith("[") and "]" in text:
+            close = text.rfind("]")
+            inner = text[1:close]
+            if not re.match(r"^\d+[A-Z]", inner):  # not an isotope label such as [13C]
+                text = inner
+                start += 1
+        text = re.sub(r"(?:\d?[+\-−⁺⁻]|[•·])+$", "", text)
+    return text, start, start + len(text)
+
+
+_OTHER_KINDS = [
+    (re.compile(r"^(?:IR|FT-?IR|ATR-?IR|FTIR|ν)"), "IR"),
+    (re.compile(r"^(?:mp|m\.p\.|Mp|M\.p\.|M\.P\.|MP)(?![A-Za-z])"), "mp"),
+    (re.compile(r"^(?:bp|b\.p\.)"), "bp"),
+    (re.compile(r"^(?:Rf|R_f|R\s?f|TLC)"), "Rf"),
+    (re.compile(r"^(?:\[α\]|α|Optical rotation|Specific rotation)"), "rotation"),
+    (re.compile(r"^(?:Yield|yield)"), "yield"),
+    (re.compile(r"^(?:UV|λmax)"), "UV"),
+    (re.compile(r"^(?:LRMS|GC-?MS|LC-?MS|MS)"), "MS"),
+]
+
+
+def _other_kind(text: str) -> str:
+    for pattern, kind in _OTHER_KINDS:
+        if pattern.match(text):
+            return kind
+    return "other"
