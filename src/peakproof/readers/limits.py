@@ -1,0 +1,104 @@
+"""Resource limits for reading untrusted documents, checked before the expensive work starts."""
+
+from __future__ import annotations
+
+import io
+import os
+import time
+import zipfile
+from dataclasses import dataclass
+
+from .base import ReaderError
+
+MiB = 1024 * 1024
+# Below this size a member's compression ratio says nothing (tiny XML parts compress well).
+_RATIO_FLOOR = 1 * MiB
+
+
+def _mb(size: float) -> str:
+    return f"{size / MiB:.1f} MiB"
+
+
+@dataclass(frozen=True, slots=True)
+class Limits:
+    """How much a reader may take on; every field can be raised for trusted input."""
+
+    max_bytes: int = 50 * MiB
+    max_uncompressed_bytes: int = 200 * MiB
+    max_compression_ratio: float = 100.0
+    max_pages: int = 2000
+    max_seconds: float = 60.0
+
+    def check_size(self, size: int, name: str = "") -> None:
+        if size > self.max_bytes:
+            raise ReaderError(
+                f"the file is {_mb(size)}, more than the {_mb(self.max_bytes)} limit",
+                "Split the document, or raise the limit (Limits(max_bytes=...)) if you trust it.",
+                name,
+            )
+
+    def deadline(self, name: str = "") -> "Deadline":
+        return Deadline(self.max_seconds, name)
+
+
+class Deadline:
+    """Raises :class:`ReaderError` once a reader has run longer than allowed."""
+
+    __slots__ = ("_seconds", "_stop", "_name")
+
+    def __init__(self, seconds: float, name: str = ""):
+        self._seconds = seconds
+        self._stop = time.monotonic() + seconds
+        self._name = name
+
+    def check(self, doing: str) -> None:
+        if time.monotonic() > self._stop:
+            raise ReaderError(
+                f"reading took longer than {self._seconds:g} s ({doing})",
+                "The file may be unusually large or complex; raise Limits(max_seconds=...) "
+                "if you trust it.",
+                self._name,
+            )
+
+
+def file_size(path: str | os.PathLike, name: str = "") -> int:
+    try:
+        return os.stat(path).st_size
+    except FileNotFoundError:
+        raise ReaderError("the file does not exist", "Check the path.", name) from None
+    except IsADirectoryError:
+        raise ReaderError("this is a folder, not a file", "Give the path of a file.", name) from None
+    except OSError as exc:
+        raise ReaderError(f"the file cannot be opened ({exc.strerror})", "", name) from None
+
+
+def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "") -> None:
+    """Inspect a zip's central directory (sizes, ratios, encryption) without inflating it."""
+    damaged = "Open it in Word and save it again, or export a fresh copy."
+    try:
+        with zipfile.ZipFile(io.BytesIO(source) if isinstance(source, bytes) else source) as zf:
+            members = zf.infolist()
+    except (zipfile.BadZipFile, EOFError, ValueError, NotImplementedError):
+        raise ReaderError("the .docx file is damaged (truncated or not a zip archive)", damaged,
+                          name) from None
+    total = 0
+    for info in members:
+        if info.flag_bits & 0x1:
+            raise ReaderError("the document is password-protected",
+                              "Remove the password in Word and try again.", name)
+        total += info.file_size
+        ratio = info.file_size / max(info.compress_size, 1)
+        if info.file_size > _RATIO_FLOOR and ratio > limits.max_compression_ratio:
+            raise ReaderError(
+                f"part {info.filename!r} expands {ratio:.0f}-fold "
+                f"(limit {limits.max_compression_ratio:g}), which is how zip bombs look",
+                "If the document is genuine, raise Limits(max_compression_ratio=...).",
+                name,
+            )
+    if total > limits.max_uncompressed_bytes:
+        raise ReaderError(
+            f"the document would unpack to {_mb(total)}, more than the "
+            f"{_mb(limits.max_uncompressed_bytes)} limit",
+            "If the document is genuine, raise Limits(max_uncompressed_bytes=...).",
+            name,
+        )

@@ -1,0 +1,270 @@
+"""PDF → plain text, page by page and line by line, with a page/line/column map.
+
+Lines are rebuilt from the characters (not from pdfplumber's own line grouping, which
+splits raised superscripts and lowered subscripts into lines of their own): full-size
+characters are grouped by baseline, and smaller characters join the nearest line, so
+``¹H`` and ``CDCl₃`` come out as ``1H`` and ``CDCl3``.  Then:
+
+* ligatures (ﬁ ﬂ ﬀ ﬃ ﬄ ﬅ ﬆ) are expanded;
+* a line ending in two lowercase letters and a hyphen, followed by a line starting with a
+  lowercase letter, is joined without the hyphen (never after a digit, so "7.36–" / "7.28"
+  keeps its dash, nor after a capital, so "N-" / "methyl" keeps its hyphen);
+* running headers and footers are removed: among the first and last three lines of each
+  page, a line repeated on at least two pages and half the pages (compared exactly, or with
+  digits masked when it is short, as "Page 3 of 9" is), and a bare page number;
+* line breaks inside a paragraph stay "\\n" (the parser joins lines); a wider vertical gap
+  gives a blank line.  Page breaks are line breaks.
+* damage that PDF text extraction commonly leaves (``¼`` for ``=``, ``d`` for ``δ``) is kept
+  as is: repairing it is the parser's job, which also reports it.
+
+``line`` counts every line rebuilt on the page, headers included, from the top, so it
+matches what a reader counts; ``column`` is 1-based in that line's extracted text.
+Multi-column layouts are read line by line across the columns.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import re
+from bisect import bisect_left
+from dataclasses import dataclass
+from statistics import median
+
+from .base import Location, ReaderError, SourceText, TextBuilder
+from .limits import Limits
+
+LIGATURES = {"ﬀ": "ff", "ﬁ": "fi", "ﬂ": "fl", "ﬃ": "ffi", "ﬄ": "ffl", "ﬅ": "ft", "ﬆ": "st"}
+_PAGE_NUMBER = re.compile(
+    r"(?:page\s*)?[-–—]?\s*[Ss]?\d{1,4}\s*[-–—]?(?:\s*(?:of|/)\s*\d{1,4})?", re.IGNORECASE
+)
+_HYPHENS = "-\u2010\u00ad"
+_EDGE_LINES = 3  # how many lines at the top and bottom of a page may be headers/footers
+_SHORT_LINE = 40  # headers compared with digits masked only when at most this long
+
+
+@dataclass(slots=True)
+class _Line:
+    page: int
+    number: int
+    text: str
+    baseline: float
+    size: float
+
+
+def _group_lines(chars: list[dict], page_height: float) -> list[tuple[float, float, str]]:
+    """Characters → (baseline, size, text) lines, top to bottom."""
+    glyphs = []
+    for ch in chars:
+        text = ch.get("text") or ""
+        if not text:
+            continue
+        matrix = ch.get("matrix")
+        baseline = page_height - matrix[5] if matrix else ch["bottom"]
+        glyphs.append((baseline, ch["x0"], ch["x1"], float(ch.get("size") or 0.0), text))
+    if not glyphs:
+        return []
+    sizes = sorted(g[3] for g in glyphs)
+    body = sizes[len(sizes) // 2] or 10.0
+    full = sorted((g for g in glyphs if g[3] >= 0.85 * body), key=lambda g: g[0])
+    small = [g for g in glyphs if g[3] < 0.85 * body]
+    clusters: list[list] = []
+    for g in full:
+        if clusters and g[0] - clusters[-1][0][0] <= 0.3 * body:
+            clusters[-1].append(g)
+        else:
+            clusters.append([g])
+    baselines = [c[0][0] for c in clusters]
+    orphans = []
+    for g in small:
+        i = bisect_left(baselines, g[0])
+        near = [j for j in (i - 1, i) if 0 <= j < len(baselines)]
+        best = min(near, key=lambda j: abs(baselines[j] - g[0]), default=None)
+        if best is not None and abs(baselines[best] - g[0]) <= 0.7 * body:
+            clusters[best].append(g)
+        else:
+            orphans.append(g)
+    for g in sorted(orphans, key=lambda g: g[0]):  # small print far from any full line
+        clusters.append([g])
+    clusters.sort(key=lambda c: c[0][0])
+    merged: list[list] = []
+    for c in clusters:  # orphans on one baseline form one line
+        if merged and len(merged[-1]) and merged[-1][0][3] < 0.85 * body and c[0][3] < 0.85 * body \
+                and abs(c[0][0] - merged[-1][0][0]) <= 0.3 * body:  # fmt: skip
+            merged[-1].extend(c)
+        else:
+            merged.append(c)
+    lines = []
+    for cluster in merged:
+        cluster.sort(key=lambda g: g[1])
+        parts, last_x1, last_text = [], None, " "
+        for _, x0, x1, size, text in cluster:
+            gap_limit = 0.2 * max(size, 0.6 * body)
+            if last_x1 is not None and x0 - last_x1 > gap_limit and last_text[-1] != " " \
+                    and text[0] != " ":  # fmt: skip
+                parts.append(" ")
+            parts.append(text)
+            last_x1, last_text = x1, text
+        text = "".join(parts).strip()
+        if text:
+            lines.append((cluster[0][0], max(g[3] for g in cluster), text))
+    return lines
+
+
+def _masked(text: str) -> str:
+    return re.sub(r"\d+", "#", " ".join(text.split()))
+
+
+def _running_lines(pages: list[list[_Line]]) -> set[str]:
+    """Texts (exact, or masked when short) repeated at the page edges across pages."""
+    counts: dict[str, int] = {}
+    for lines in pages:
+        edge = lines[:_EDGE_LINES] + lines[-_EDGE_LINES:]
+        keys = set()
+        for line in edge:
+            keys.add("=" + " ".join(line.text.split()))
+            if len(line.text) <= _SHORT_LINE:
+                keys.add("#" + _masked(line.text))
+        for key in keys:
+            counts[key] = counts.get(key, 0) + 1
+    needed = max(2, (len(pages) + 1) // 2)
+    return {key for key, count in counts.items() if count >= needed}
+
+
+def _is_running(line: _Line, running: set[str]) -> bool:
+    if _PAGE_NUMBER.fullmatch(line.text.strip()):
+        return True
+    if "=" + " ".join(line.text.split()) in running:
+        return True
+    return len(line.text) <= _SHORT_LINE and "#" + _masked(line.text) in running
+
+
+def _strip_running(lines: list[_Line], running: set[str]) -> list[_Line]:
+    start, stop = 0, len(lines)
+    while start < min(stop, _EDGE_LINES) and _is_running(lines[start], running):
+        start += 1
+    while stop > max(start, len(lines) - _EDGE_LINES) and _is_running(lines[stop - 1], running):
+        stop -= 1
+    return lines[start:stop]
+
+
+class _PdfLocator:
+    __slots__ = ("_map", "_records")
+
+    def __init__(self, offset_map, records: list[tuple[int, int]]):
+        self._map = offset_map
+        self._records = records
+
+    def __call__(self, offset: int) -> Location:
+        key, pos = self._map.lookup(offset)
+        if key is None:
+            return Location("pdf", page=1, line=1, column=1)
+        page, line = self._records[key]
+        return Location("pdf", page=page, line=line, column=pos + 1)
+
+
+def _emit_line(out: TextBuilder, text: str, key: int, drop_last: bool) -> None:
+    if drop_last:
+        text = text[:-1]
+    pos = 0
+    for i, ch in enumerate(text):
+        if ch in LIGATURES:
+            out.copy(text[pos:i], pos, key)
+            out.put(LIGATURES[ch], i, key)
+            pos = i + 1
+    out.copy(text[pos:], pos, key)
+
+
+def _joins_hyphenated(text: str, following: str) -> bool:
+    return (
+        len(text) >= 3
+        and text[-1] in _HYPHENS
+        and text[-2].isalpha() and text[-2].islower()
+        and text[-3].isalpha() and text[-3].islower()
+        and following[:1].isalpha() and following[:1].islower()
+    )  # fmt: skip
+
+
+def _open_pdf(source, name: str):
+    import pdfplumber  # heavy; imported only when a PDF is read
+    from pdfminer.pdfdocument import PDFEncryptionError, PDFPasswordIncorrect
+
+    encrypted = ReaderError("the PDF is encrypted",
+                            "Remove the password and try again.", name)  # fmt: skip
+    stream = io.BytesIO(source) if isinstance(source, bytes) else source
+    try:
+        pdf = pdfplumber.open(stream)
+        pages = pdf.pages  # forces the page tree to be read: malformed files fail here
+    except Exception as exc:
+        cause = exc
+        while cause is not None:  # pdfplumber wraps pdfminer's exceptions
+            if isinstance(cause, (PDFPasswordIncorrect, PDFEncryptionError)):
+                raise encrypted from None
+            cause = cause.__cause__ or (cause.args[0] if cause.args and
+                                        isinstance(cause.args[0], BaseException) else None)
+        raise ReaderError(f"the PDF is damaged or not a PDF ({type(exc).__name__}: {exc})",
+                          "Export the PDF again from the program that made it.", name) from None
+    return pdf, pages
+
+
+def read_pdf(source: str | os.PathLike | bytes, name: str = "", limits: Limits | None = None,
+             ) -> SourceText:  # fmt: skip
+    limits = limits or Limits()
+    deadline = limits.deadline(name)
+    pdf, pages = _open_pdf(source, name)
+    try:
+        if len(pages) > limits.max_pages:
+            raise ReaderError(f"the PDF has {len(pages)} pages, more than the "
+                              f"{limits.max_pages}-page limit",
+                              "Split it, or raise Limits(max_pages=...).", name)  # fmt: skip
+        page_lines: list[list[_Line]] = []
+        for number, page in enumerate(pages, 1):
+            deadline.check(f"page {number}")
+            try:
+                grouped = _group_lines(page.chars, float(page.height))
+            except Exception as exc:
+                raise ReaderError(f"page {number} of the PDF could not be read "
+                                  f"({type(exc).__name__}: {exc})",
+                                  "Export the PDF again.", name) from None  # fmt: skip
+            page_lines.append([_Line(number, i, text, baseline, size)
+                               for i, (baseline, size, text) in enumerate(grouped, 1)])
+    finally:
+        pdf.close()
+    if not any(page_lines):
+        raise ReaderError("the PDF has no extractable text (it may be scanned images)",
+                          "Run OCR on it first, or use the original document.", name)
+    running = _running_lines(page_lines) if len(page_lines) >= 2 else set()
+    kept = [_strip_running(lines, running) for lines in page_lines]
+    kept = [
+        [ln for ln in lines if not (_PAGE_NUMBER.fullmatch(ln.text) and _is_edge(ln, page))]
+        for lines, page in zip(kept, page_lines)
+    ]
+    return _assemble(kept, name)
+
+
+def _is_edge(line: _Line, page: list[_Line]) -> bool:
+    return line.number <= _EDGE_LINES or line.number > len(page) - _EDGE_LINES
+
+
+def _assemble(pages: list[list[_Line]], name: str) -> SourceText:
+    out = TextBuilder()
+    records: list[tuple[int, int]] = []
+    flat = [line for lines in pages for line in lines]
+    pitches = {}
+    for lines in pages:
+        steps = [b.baseline - a.baseline for a, b in zip(lines, lines[1:]) if b.baseline > a.baseline]
+        pitches[lines[0].page if lines else 0] = median(steps) if steps else None
+    for i, line in enumerate(flat):
+        key = len(records)
+        records.append((line.page, line.number))
+        following = flat[i + 1] if i + 1 < len(flat) else None
+        join = following is not None and _joins_hyphenated(line.text, following.text)
+        _emit_line(out, line.text, key, drop_last=join)
+        if following is None or join:
+            continue
+        out.put("\n", len(line.text), key)
+        pitch = pitches.get(line.page) or 1.2 * line.size
+        if following.page == line.page and following.baseline - line.baseline > 1.5 * pitch:
+            out.put("\n", len(line.text), key)
+    out.put("\n", len(flat[-1].text), len(records) - 1)
+    return SourceText(out.text(), "pdf", name, (), _PdfLocator(out.map, records))
