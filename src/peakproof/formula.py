@@ -195,6 +195,8 @@ class Formula:
                 if rest > 1e-12:
                     fractions.append(f"{rest!r}{written}")
         text = "·".join((["".join(whole)] if whole else []) + fractions)
+        if self.charge and re.fullmatch(r"\[\w+\]\d+", text):
+            text = text[1:].replace("]", "")  # "[13C]2+" would read as charge 2+; "13C2+" does not
         return text + _charge_text(self.charge, self.radical, bracketed=False)
 
     # Adduct arithmetic: charges add, counts add or subtract.
