@@ -219,3 +219,10 @@ def test_simulate_dispatches_and_explains_unknown_method():
     assert "first-order" == simulate(system, "first-order").method
     with pytest.raises(ValueError, match="first-order"):
         simulate(system, "exact")
+
+
+def test_first_order_method_refuses_quantum_options():
+    """Options of the exact method are not silently ignored by the first-order one."""
+    system = SpinSystem((SpinGroup("A", 1.0, 1),))
+    with pytest.raises(ValueError, match="max_spins"):
+        simulate(system, "first-order", max_spins=8)

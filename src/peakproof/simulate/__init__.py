@@ -47,6 +47,11 @@ def simulate(system: SpinSystem, method: str = "quantum", **options) -> Simulati
     if method == "quantum":
         return quantum_spectrum(system, **options)
     if method == "first-order":
+        unknown = sorted(set(options) - {"tolerance_hz"})
+        if unknown:
+            raise SpinSystemError(
+                f"option(s) {', '.join(unknown)} apply to the quantum method only"
+            )
         return first_order_spectrum(system, **options)
     raise SpinSystemError(
         f"unknown simulation method {method!r}: use one of {', '.join(METHODS)}"
