@@ -252,6 +252,12 @@ counts_strategy = st.dictionaries(
 )
 
 
+def small_counts(largest):
+    return st.dictionaries(
+        st.sampled_from(ELEMENTS), st.integers(1, largest), min_size=1, max_size=3
+    )
+
+
 @st.composite
 def formula_texts(draw):
     """A formula text with parentheses and hydrates, and the counts it stands for."""
@@ -259,14 +265,14 @@ def formula_texts(draw):
     text = counts_text(main)
     expected = dict(main)
     if draw(st.booleans()):
-        group = draw(st.dictionaries(st.sampled_from(ELEMENTS), st.integers(1, 5), min_size=1, max_size=3))
+        group = draw(small_counts(5))
         times = draw(st.integers(1, 4))
         bracket = draw(st.sampled_from(["()", "[]"]))
         text += bracket[0] + counts_text(group) + bracket[1] + (str(times) if times > 1 else "")
         for s, n in group.items():
             expected[s] = expected.get(s, 0) + n * times
     for _ in range(draw(st.integers(0, 2))):
-        solvate = draw(st.dictionaries(st.sampled_from(ELEMENTS), st.integers(1, 6), min_size=1, max_size=3))
+        solvate = draw(small_counts(6))
         amount = draw(st.sampled_from([1, 2, 3, 0.5, 0.25, 1.5]))
         separator = draw(st.sampled_from(["·", "•", ".", " × ", "·"]))
         text += separator + ("" if amount == 1 else str(amount)) + counts_text(solvate)
@@ -404,5 +410,7 @@ def test_import_is_cheap():
         "bad = [m for m in ('numpy', 'lark', 'matplotlib') if m in sys.modules]; "
         "print(','.join(bad))"
     )
-    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    result = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True
+    )
     assert result.stdout.strip() == ""

@@ -1,8 +1,8 @@
 """Molecular formulas and mass-spectrometry ion types as chemists write them.
 
-``parse_formula("C12H14O3Na")``, ``parse_formula("[C12H14O3Na]+")``, ``parse_formula("CuSO4·5H2O")``
-read a formula (grammar in ``grammar/formula.lark``); ``parse_ion("[M + Na]+")`` reads an ion
-type; ``ion_formula`` and ``neutral_from_ion`` go between the two.
+``parse_formula("C12H14O3Na")``, ``parse_formula("[C12H14O3Na]+")`` and
+``parse_formula("CuSO4·5H2O")`` read a formula (grammar in ``grammar/formula.lark``);
+``parse_ion("[M + Na]+")`` reads an ion type; ``ion_formula`` and ``neutral_from_ion`` go between the two.
 
 Isotopes keep their own symbol in ``Formula.counts``: ``"D"``, ``"T"`` and mass-number symbols
 such as ``"13C"``.  ``²H``/``2H`` are stored as ``"D"`` and ``³H``/``3H`` as ``"T"``, so one
@@ -216,7 +216,9 @@ class Formula:
         for symbol, number in other._counts.items():
             have = counts.get(symbol, 0)
             if number > have + 1e-9:
-                missing.append(f"{_written_symbol(symbol)} ({_fmt(number)} needed, {_fmt(have)} present)")
+                missing.append(
+                    f"{_written_symbol(symbol)} ({_fmt(number)} needed, {_fmt(have)} present)"
+                )
             counts[symbol] = have - number
         if missing:
             raise FormulaError(
@@ -336,7 +338,7 @@ def parse_formula(text: str) -> Formula:
         what = "formula ends too early" if at_end else f"unexpected {str(token)!r} in formula"
         allowed = _expected_text(exc.expected or ())
         raise FormulaError(what + (f": {allowed}" if allowed else ""), text, position) from None
-    except UnexpectedInput as exc:  # UnexpectedEOF and future kinds
+    except UnexpectedInput:  # UnexpectedEOF and future kinds
         raise FormulaError("formula ends too early", text, len(text)) from None
     except LarkError as exc:  # pragma: no cover - grammar bugs, still reported politely
         raise FormulaError(f"cannot read formula ({exc.__class__.__name__})", text, 0) from None
@@ -431,7 +433,8 @@ def _unit(unit: Any, text: str) -> dict[str, float]:
 def _count(token: Any, text: str) -> int:
     number = int(str(token).translate(_SUBSCRIPTS))
     if number == 0:
-        raise FormulaError("a count of 0 is not a count: leave the element out", text, token.start_pos)
+        message = "a count of 0 is not a count: leave the element out"
+        raise FormulaError(message, text, token.start_pos)
     return number
 
 
@@ -471,7 +474,9 @@ def _isotope(symbol: str, position: int, text: str) -> str:
 # ---------------------------------------------------------------------------------------------
 # Ion types: [M+Na]+, [M−H]−, [2M+Na]+, [M]+•, M+•, [M+H−H2O]+ …
 
-_ION_DASHES = str.maketrans({"−": "-", "–": "-", "—": "-", "⁺": "+", "⁻": "-", "∙": "•", "·": "•"})
+_ION_DASHES = str.maketrans(
+    {"−": "-", "–": "-", "—": "-", "⁺": "+", "⁻": "-", "∙": "•", "·": "•"}
+)
 _ION_SUPERSCRIPT_DIGITS = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
 
 
@@ -550,7 +555,8 @@ def parse_ion(text: str) -> Ion:
         end = stripped.rfind(closer)
         if end < 0:
             raise FormulaError(f"ion type has no closing {closer!r}", text, offset + len(stripped))
-        inside, inside_at, tail, tail_at = stripped[1:end], offset + 1, stripped[end + 1 :], offset + end + 1
+        inside, inside_at = stripped[1:end], offset + 1
+        tail, tail_at = stripped[end + 1 :], offset + end + 1
     else:
         # Unbracketed: only M (or nM) followed by its charge, e.g. M+ or M+•.
         match = re.match(r"^(\d*M)\s*(.*)$", stripped)
@@ -571,7 +577,9 @@ def _ion_charge(tail: str, text: str, at: int) -> tuple[int, bool]:
     if not match or (match.group("num") and match.group("num2")):
         lead = len(tail) - len(tail.lstrip())
         raise FormulaError(
-            f"cannot read the ion charge {tail.strip()!r}: expected +, -, 2+ or +• ", text, at + lead
+            f"cannot read the ion charge {tail.strip()!r}: expected +, -, 2+ or +•",
+            text,
+            at + lead,
         )
     magnitude = int(match.group("num") or match.group("num2") or 1)
     if magnitude == 0:
@@ -580,7 +588,10 @@ def _ion_charge(tail: str, text: str, at: int) -> tuple[int, bool]:
     return sign * magnitude, bool(match.group("rad1") or match.group("rad2"))
 
 
-def _ion_inside(inside: str, text: str, at: int) -> tuple[int, tuple[tuple[int, int, Formula], ...]]:
+_Term = tuple[int, int, Formula]  # (sign, coefficient, formula)
+
+
+def _ion_inside(inside: str, text: str, at: int) -> tuple[int, tuple[_Term, ...]]:
     match = re.match(r"^\s*(\d*)\s*M", inside)
     if not match:
         lead = len(inside) - len(inside.lstrip())
@@ -609,7 +620,8 @@ def _ion_inside(inside: str, text: str, at: int) -> tuple[int, tuple[tuple[int, 
             formula = parse_formula(formula_text)
         except FormulaError as exc:
             inner = exc.position if exc.position is not None else 0
-            raise FormulaError(exc.message + " (in the ion type)", text, formula_at + inner) from None
+            message = exc.message + " (in the ion type)"
+            raise FormulaError(message, text, formula_at + inner) from None
         if formula.charge:
             raise FormulaError(
                 "write the ion's charge after the bracket, not inside it", text, formula_at
