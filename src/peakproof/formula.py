@@ -2,7 +2,8 @@
 
 ``parse_formula("C12H14O3Na")``, ``parse_formula("[C12H14O3Na]+")`` and
 ``parse_formula("CuSO4·5H2O")`` read a formula (grammar in ``grammar/formula.lark``);
-``parse_ion("[M + Na]+")`` reads an ion type; ``ion_formula`` and ``neutral_from_ion`` go between the two.
+``parse_ion("[M + Na]+")`` reads an ion type; ``ion_formula`` and ``neutral_from_ion`` go
+between the two.
 
 Isotopes keep their own symbol in ``Formula.counts``: ``"D"``, ``"T"`` and mass-number symbols
 such as ``"13C"``.  ``²H``/``2H`` are stored as ``"D"`` and ``³H``/``3H`` as ``"T"``, so one
