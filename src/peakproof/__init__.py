@@ -12,20 +12,13 @@ __all__ = ["__version__", "parse", "parse_file"]
 
 def parse(text: str, *, path: str | None = None):
     """Read every characterization block in ``text`` into a :class:`peakproof.model.Document`."""
-    from .parse import parse as _parse
+    from .parsing import parse as _parse
 
     return _parse(text, path=path)
 
 
 def parse_file(path, *, fmt: str | None = None):
     """Read a .txt/.md/.tex/.docx/.pdf file and parse it; positions refer to the text read."""
-    from .api import read_source
+    from .api import parse_path
 
-    source = read_source(path, fmt=fmt)
-    return _parse_source(source, path)
-
-
-def _parse_source(source, path):
-    from .parse import parse as _parse
-
-    return _parse(source.text, path=str(path))
+    return parse_path(path, fmt=fmt)[1]

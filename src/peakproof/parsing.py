@@ -133,10 +133,25 @@ def parse_block(text: str, start: int, end: int, index: LineIndex) -> tuple[Bloc
     try:
         items = parser.parse(repaired.text, start="block")
     except UnexpectedInput:
-        items = _recover(parser, builder, ctx)
+        try:
+            items = _recover(parser, builder, ctx)
+        except Exception as exc:  # a bug of ours must not lose the document
+            items = []
+            ctx.diagnostics.append(_internal(index, start, end, exc))
+    except Exception as exc:
+        items = []
+        ctx.diagnostics.append(_internal(index, start, end, exc))
     finally:
         builder.ctx = None
     return _block(index.span(start, end), raw, items), ctx.diagnostics
+
+
+def _internal(index, start, end, exc) -> Diagnostic:
+    return Diagnostic(
+        "internal-error", "error",
+        f"peakproof could not read this block ({type(exc).__name__}: {exc}); please report it",
+        index.span(start, end), hint="the block was skipped; the rest of the document was read",
+    )
 
 
 def _block(span, raw, items) -> Block:
@@ -172,12 +187,12 @@ def _recover(parser: Lark, builder: BlockBuilder, ctx: Context) -> list:
         try:
             items.extend(_parse_piece(parser, builder, ctx, a, piece, "item_only"))
             continue
-        except UnexpectedInput as exc:
-            first_error = exc
+        except (UnexpectedInput, ValueError, AttributeError, IndexError) as exc:
+            first_error = exc if isinstance(exc, UnexpectedInput) else None
         spectrum = _recover_spectrum(parser, builder, ctx, a, piece)
         if spectrum is not None:
             items.append(spectrum)
-        else:
+        elif first_error is not None:
             _syntax_error(ctx, first_error, a, piece)
     return items
 
@@ -206,10 +221,12 @@ def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:
     signals = []
     for s, e in _split_top_level(piece, header_end):
         chunk = piece[s:e]
+        if chunk.rstrip().endswith("."):
+            chunk = chunk.rstrip()[:-1]
         if not chunk.strip() or chunk.strip() in {".", ";", ","}:
             continue
         try:
-            signals.extend(_parse_piece(parser, builder, ctx, offset + s, chunk, "entry_only")[0])
+            signals.extend(_parse_piece(parser, builder, ctx, offset + s, chunk, "entry_only"))
         except UnexpectedInput as exc:
             _syntax_error(ctx, exc, offset + s, chunk, skipped=True)
     from dataclasses import replace
@@ -257,12 +274,22 @@ def _header_end(piece: str) -> int | None:
         return i
 
 
+_UNCLOSED_BEFORE = re.compile(r"[,;]\s*[-−]?\d+(?:[.,]\d+)?(?:\s*[-–—]\s*[-−]?\d+(?:[.,]\d+)?)?\s*$")
+
+
 def _split_top_level(piece: str, start: int):
+    """Signal pieces split at top-level commas; an unclosed '(' is closed at the next signal."""
     depth = 0
     seg = start
     for i in range(start, len(piece)):
         ch = piece[i]
         if ch == "(":
+            if depth >= 1:
+                m = _UNCLOSED_BEFORE.search(piece, seg, i)
+                if m:
+                    yield seg, m.start()
+                    seg = m.start() + 1
+                    depth = 0
             depth += 1
         elif ch == ")":
             depth = max(0, depth - 1)
@@ -298,6 +325,9 @@ def _syntax_error(ctx: Context, exc: UnexpectedInput, offset: int, piece: str, s
     hint = _hint(piece, exc, expected)
     start_piece = offset + (len(piece) - len(piece.lstrip()))
     end_piece = offset + len(piece.rstrip())
+    if piece.count("(") > piece.count(")"):
+        unclosed = offset + _last_unclosed(piece)
+        pos, end = unclosed, unclosed + 1
     if skipped:
         message = f"could not read this signal ({what}); it was skipped: {' '.join(piece.split())!r}"
         span = ctx.span(start_piece, max(end_piece, start_piece + 1))
@@ -312,6 +342,16 @@ def _syntax_error(ctx: Context, exc: UnexpectedInput, offset: int, piece: str, s
             Diagnostic("syntax", "error", message, ctx.span(pos, max(end, pos + 1)),
                        expected=expected, hint=hint, data={"skipped": ctx.text[start_piece:end_piece]})
         )
+
+
+def _last_unclosed(piece: str) -> int:
+    stack = []
+    for i, ch in enumerate(piece):
+        if ch == "(":
+            stack.append(i)
+        elif ch == ")" and stack:
+            stack.pop()
+    return stack[-1] if stack else len(piece.rstrip())
 
 
 def _expected(exc: UnexpectedInput) -> tuple[str, ...]:

@@ -115,11 +115,12 @@ class BlockBuilder(Transformer):
         label_tok = c[0]
         bonds, nuclei, label = coupling_label(label_tok.value)
         values = c[-1]
+        label_start = label_tok.start_pos + len(label_tok.value) - len(label_tok.value.lstrip())
         span = self.ctx.span
         return [
             Coupling(
                 value=number(t.value),
-                span=span(label_tok.start_pos if i == 0 else t.start_pos, t.end_pos),
+                span=span(label_start if i == 0 else t.start_pos, t.end_pos),
                 text=t.value.replace("\u2212", "-").replace(",", "."),
                 nuclei=nuclei,
                 bonds=bonds,

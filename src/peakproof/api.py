@@ -1,0 +1,66 @@
+"""The one face the command line and the web page call: read, parse, check, format, simulate.
+
+Neither face reaches below this module, so a third (an editor plug-in, a notebook) costs
+nothing new.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+from dataclasses import dataclass
+
+from .model import Document
+
+
+@dataclass(frozen=True)
+class Source:
+    """A document's text as handed to the parser, and how to locate offsets in the original."""
+
+    text: str
+    name: str
+    format: str
+    reader: object | None = None  # readers.SourceText when read by a reader
+
+    def locate(self, offset: int):
+        if self.reader is not None:
+            return self.reader.locate(offset)
+        return None
+
+
+class InputError(Exception):
+    """An input that cannot be read; ``str()`` is a message for people."""
+
+
+def read_source(path, *, fmt: str | None = None, data: bytes | None = None, limits=None) -> Source:
+    """Read ``path`` (``"-"`` for standard input, or ``data`` bytes) into a :class:`Source`."""
+    from .readers import ReaderError, read_document
+
+    try:
+        if data is not None:
+            st = read_document(data, fmt=fmt, name=str(path), limits=limits)
+        elif str(path) == "-":
+            raw = sys.stdin.buffer.read()
+            st = read_document(raw, fmt=fmt or "txt", name="<stdin>", limits=limits)
+        else:
+            if not os.path.exists(path):
+                raise InputError(f"{path}: no such file")
+            if os.path.isdir(path):
+                raise InputError(f"{path}: is a folder; give a file, or a glob such as '{path}/*.md'")
+            st = read_document(path, fmt=fmt, limits=limits)
+    except ReaderError as exc:
+        raise InputError(str(exc)) from None
+    except OSError as exc:
+        raise InputError(f"{path}: {exc.strerror or exc}") from None
+    return Source(text=st.text, name=str(path), format=st.format, reader=st)
+
+
+def parse_source(source: Source) -> Document:
+    from .parsing import parse
+
+    return parse(source.text, path=source.name)
+
+
+def parse_path(path, *, fmt: str | None = None) -> tuple[Source, Document]:
+    source = read_source(path, fmt=fmt)
+    return source, parse_source(source)
