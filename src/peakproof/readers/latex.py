@@ -9,7 +9,8 @@ treats everything else leniently.  Choices:
 * Math shifts (``$``, ``\\(``, ``\\[``) are dropped; inside math ``-`` is a minus sign (−) and
   ``^``/``_`` scripts become plain characters (``$^{13}$C`` → 13C, ``CDCl$_3$`` → CDCl3).
 * Symbol commands (``\\delta``, ``\\times``, ``\\degree``, ``\\pm`` …) become Unicode; a space
-  after them is kept (TeX would swallow it) since ``\\delta 7.26`` means "δ 7.26".
+  after them is kept (TeX would swallow it) since ``\\delta 7.26`` means "δ 7.26"; only
+  after the degree sign is it swallowed, as TeX does (``\\degree C`` → °C).
   ``\\circ`` is read as ° because in this trade it nearly always is.
 * Formatting commands (``\\textit``, ``\\emph``, ``\\textbf``, ``\\mathrm``, ``\\ce``,
   ``\\textsuperscript`` …) keep their argument's text.  ``\\SI{400}{\\mega\\hertz}`` and
@@ -104,6 +105,7 @@ SI_UNITS = {
     "ampere": "A", "ohm": "Ω", "angstrom": "Å", "electronvolt": "eV", "torr": "Torr",
     "mmHg": "mmHg", "equivalent": "equiv",
 }  # fmt: skip
+_SWALLOW_SPACE = {"degree", "textdegree", "circ"}  # "\\degree C" is °C, as TeX prints it
 _PLAIN = re.compile(r"[^\\%$\{\}^_~\-`'&\r\n]+")
 _WHOLE_LINE_COMMENT = re.compile(r"[ \t]*%[^\r\n]*(?:\r\n|\r|\n)?")
 _SPACES = re.compile(r"[ \t]*")
@@ -348,8 +350,11 @@ class _Converter:
                     return self.skip_spaces(opt[2], end)
                 return self.skip_spaces(j, end)
             out.put(SYMBOLS[name], i)
-            if j < end and src[j] == "{" and src.startswith("{}", j):
+            if src.startswith("{}", j):
                 j += 2  # \textdegree{}C
+            elif name in _SWALLOW_SPACE:
+                j = self.skip_spaces(j, end)
+            return j
             return j
         if name in KEEP_ARGUMENT:
             if name == "textcolor":

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import os
+import stat
 import time
 import zipfile
 from dataclasses import dataclass
@@ -63,13 +64,16 @@ class Deadline:
 
 def file_size(path: str | os.PathLike, name: str = "") -> int:
     try:
-        return os.stat(path).st_size
+        info = os.stat(path)
     except FileNotFoundError:
         raise ReaderError("the file does not exist", "Check the path.", name) from None
     except IsADirectoryError:
         raise ReaderError("this is a folder, not a file", "Give the path of a file.", name) from None
     except OSError as exc:
         raise ReaderError(f"the file cannot be opened ({exc.strerror})", "", name) from None
+    if stat.S_ISDIR(info.st_mode):
+        raise ReaderError("this is a folder, not a file", "Give the path of a file.", name)
+    return info.st_size
 
 
 def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "") -> None:

@@ -16,6 +16,8 @@ _BOMS = (
 )
 _SAMPLE = 64 * 1024
 _CR = re.compile(r"\r\n?")
+# Bytes that text files do not contain (tab, LF, FF, CR and ESC are allowed).
+_CONTROL_BYTES = [b for b in range(32) if b not in (9, 10, 12, 13, 27)] + [127]
 
 
 def decode_text(data: bytes, name: str = "") -> tuple[str, tuple[str, ...]]:
@@ -32,10 +34,10 @@ def decode_text(data: bytes, name: str = "") -> tuple[str, tuple[str, ...]]:
                     name,
                 ) from None
     sample = data[:_SAMPLE]
-    nuls = sample.count(0)
-    if nuls > max(8, len(sample) // 200):
+    controls = sum(sample.count(b) for b in _CONTROL_BYTES)
+    if sample.count(0) > 4 or controls > max(8, len(sample) // 100):
         raise ReaderError(
-            "this does not look like a text file (it contains many NUL bytes)",
+            "this does not look like a text file (it contains NUL or other control bytes)",
             "Give a .txt, .md, .tex, .docx or .pdf file; UTF-16 text needs a byte-order mark.",
             name,
         )
