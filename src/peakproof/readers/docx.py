@@ -190,7 +190,12 @@ def _heading_styles(document) -> set[str]:
 def _open(source, limits: Limits, name: str):
     import docx  # heavy; imported only when a .docx is read
 
-    check_zip(source, limits, name)
+    members = set(check_zip(source, limits, name))
+    if "_rels/.rels" not in members or not any(
+        m.startswith("word/") and m.endswith(".xml") for m in members
+    ):
+        raise ReaderError("the zip file has no Word document in it (word/document.xml)",
+                          "Give a .docx saved by a word processor.", name)  # fmt: skip
     stream = io.BytesIO(source) if isinstance(source, bytes) else source
     try:
         return docx.Document(stream)

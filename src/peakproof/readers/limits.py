@@ -76,8 +76,9 @@ def file_size(path: str | os.PathLike, name: str = "") -> int:
     return info.st_size
 
 
-def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "") -> None:
-    """Inspect a zip's central directory (sizes, ratios, encryption) without inflating it."""
+def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "") -> list[str]:
+    """Inspect a zip's central directory (sizes, ratios, encryption) without inflating it;
+    returns the member names."""
     damaged = "Open it in Word and save it again, or export a fresh copy."
     try:
         with zipfile.ZipFile(io.BytesIO(source) if isinstance(source, bytes) else source) as zf:
@@ -106,3 +107,4 @@ def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "")
             "If the document is genuine, raise Limits(max_uncompressed_bytes=...).",
             name,
         )
+    return [info.filename for info in members]
