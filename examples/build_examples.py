@@ -181,9 +181,12 @@ def to_docx(items, path: Path) -> None:
         paragraph = document.add_heading(level=2) if kind == "heading" else document.add_paragraph()
         for chunk, style in segments(text):
             run = paragraph.add_run(chunk)
-            run.font.superscript = style == "sup" or None
-            run.font.subscript = style == "sub" or None
-            run.italic = style == "i" or None
+            if style == "sup":  # both set w:vertAlign, so set only the one that applies
+                run.font.superscript = True
+            elif style == "sub":
+                run.font.subscript = True
+            elif style == "i":
+                run.italic = True
     buffer = io.BytesIO()
     document.save(buffer)
     path.write_bytes(_deterministic_zip(buffer.getvalue()))

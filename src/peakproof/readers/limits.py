@@ -6,7 +6,9 @@ import io
 import os
 import stat
 import time
+import struct
 import zipfile
+import zlib
 from dataclasses import dataclass
 
 from .base import ReaderError
@@ -107,4 +109,65 @@ def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "")
             "If the document is genuine, raise Limits(max_uncompressed_bytes=...).",
             name,
         )
+    _inflate_within_claims(source, members, limits, name)
     return [info.filename for info in members]
+
+
+def _inflate_within_claims(source, members, limits: Limits, name: str) -> None:
+    """Inflate every member in bounded chunks and stop if it yields more than its entry
+    claims: zipfile would inflate a lying member whole before noticing."""
+    handle = io.BytesIO(source) if isinstance(source, bytes) else open(source, "rb")
+    chunk = 256 * 1024
+    total = 0
+    try:
+        for info in members:
+            handle.seek(info.header_offset)
+            local = handle.read(30)
+            if len(local) < 30 or local[:4] != b"PK\x03\x04":
+                raise ReaderError("the .docx file is damaged (a part's header is missing)",
+                                  "Open it in Word and save it again.", name)  # fmt: skip
+            name_len, extra_len = struct.unpack("<HH", local[26:30])
+            handle.seek(info.header_offset + 30 + name_len + extra_len)
+            if info.compress_type == zipfile.ZIP_STORED:
+                produced = info.compress_size
+            elif info.compress_type == zipfile.ZIP_DEFLATED:
+                produced = _inflated_size(handle, info, chunk, name)
+            else:
+                raise ReaderError(f"part {info.filename!r} uses an unusual compression method",
+                                  "Save the document again from Word.", name)  # fmt: skip
+            total += produced
+            if total > limits.max_uncompressed_bytes:
+                raise ReaderError(
+                    f"the document unpacks to more than the "
+                    f"{_mb(limits.max_uncompressed_bytes)} limit",
+                    "If the document is genuine, raise Limits(max_uncompressed_bytes=...).",
+                    name,
+                )
+    finally:
+        if handle is not source:
+            handle.close()
+
+
+def _inflated_size(handle, info: zipfile.ZipInfo, chunk: int, name: str) -> int:
+    inflater = zlib.decompressobj(-15)
+    left, produced = info.compress_size, 0
+    while left > 0:
+        data = handle.read(min(chunk, left))
+        if not data:
+            break
+        left -= len(data)
+        while data:
+            try:
+                produced += len(inflater.decompress(data, chunk))
+            except zlib.error:
+                raise ReaderError(f"the .docx file is damaged (part {info.filename!r})",
+                                  "Open it in Word and save it again.", name) from None  # fmt: skip
+            data = inflater.unconsumed_tail
+            if produced > info.file_size:
+                raise ReaderError(
+                    f"part {info.filename!r} unpacks to more than the "
+                    f"{info.file_size} bytes its entry claims, which is how zip bombs look",
+                    "Do not open this file; ask for a fresh copy.",
+                    name,
+                )
+    return produced

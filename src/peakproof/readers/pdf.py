@@ -10,8 +10,9 @@ characters are grouped by baseline, and smaller characters join the nearest line
   lowercase letter, is joined without the hyphen (never after a digit, so "7.36–" / "7.28"
   keeps its dash, nor after a capital, so "N-" / "methyl" keeps its hyphen);
 * running headers and footers are removed: among the first and last three lines of each
-  page, a line repeated on at least two pages and half the pages (compared exactly, or with
-  digits masked when it is short, as "Page 3 of 9" is), and a bare page number;
+  page, a line found at the same place (k-th from the top or bottom) on at least two pages
+  and half the pages (compared exactly, or with digits masked when it is short, as
+  "Page 3 of 9" is), and a bare page number;
 * line breaks inside a paragraph stay "\\n" (the parser joins lines); a wider vertical gap
   gives a blank line.  Page breaks are line breaks.
 * damage that PDF text extraction commonly leaves (``¼`` for ``=``, ``d`` for ``δ``) is kept
@@ -115,37 +116,40 @@ def _masked(text: str) -> str:
     return re.sub(r"\d+", "#", " ".join(text.split()))
 
 
-def _running_lines(pages: list[list[_Line]]) -> set[str]:
-    """Texts (exact, or masked when short) repeated at the page edges across pages."""
-    counts: dict[str, int] = {}
+def _edge_keys(line: _Line, edge: str, place: int) -> list[tuple]:
+    keys = [(edge, place, "=", " ".join(line.text.split()))]
+    if len(line.text) <= _SHORT_LINE:
+        keys.append((edge, place, "#", _masked(line.text)))
+    return keys
+
+
+def _edges(lines: list[_Line]):
+    for place, line in enumerate(lines[:_EDGE_LINES]):
+        yield line, "top", place
+    for place, line in enumerate(reversed(lines[-_EDGE_LINES:])):
+        yield line, "bottom", place
+
+
+def _running_lines(pages: list[list[_Line]]) -> set[tuple]:
+    """Edge lines repeated at the same place (k-th from the top or bottom) across pages:
+    the same text, or, for short lines, the same text with digits masked."""
+    counts: dict[tuple, int] = {}
     for lines in pages:
-        edge = lines[:_EDGE_LINES] + lines[-_EDGE_LINES:]
-        keys = set()
-        for line in edge:
-            keys.add("=" + " ".join(line.text.split()))
-            if len(line.text) <= _SHORT_LINE:
-                keys.add("#" + _masked(line.text))
+        keys = {key for line, edge, place in _edges(lines) for key in _edge_keys(line, edge, place)}
         for key in keys:
             counts[key] = counts.get(key, 0) + 1
     needed = max(2, (len(pages) + 1) // 2)
     return {key for key, count in counts.items() if count >= needed}
 
 
-def _is_running(line: _Line, running: set[str]) -> bool:
-    if _PAGE_NUMBER.fullmatch(line.text.strip()):
-        return True
-    if "=" + " ".join(line.text.split()) in running:
-        return True
-    return len(line.text) <= _SHORT_LINE and "#" + _masked(line.text) in running
-
-
-def _strip_running(lines: list[_Line], running: set[str]) -> list[_Line]:
-    start, stop = 0, len(lines)
-    while start < min(stop, _EDGE_LINES) and _is_running(lines[start], running):
-        start += 1
-    while stop > max(start, len(lines) - _EDGE_LINES) and _is_running(lines[stop - 1], running):
-        stop -= 1
-    return lines[start:stop]
+def _strip_running(lines: list[_Line], running: set[tuple]) -> list[_Line]:
+    drop = {
+        id(line)
+        for line, edge, place in _edges(lines)
+        if _PAGE_NUMBER.fullmatch(line.text.strip())
+        or any(key in running for key in _edge_keys(line, edge, place))
+    }
+    return [line for line in lines if id(line) not in drop]
 
 
 class _PdfLocator:
@@ -234,16 +238,7 @@ def read_pdf(source: str | os.PathLike | bytes, name: str = "", limits: Limits |
         raise ReaderError("the PDF has no extractable text (it may be scanned images)",
                           "Run OCR on it first, or use the original document.", name)
     running = _running_lines(page_lines) if len(page_lines) >= 2 else set()
-    kept = [_strip_running(lines, running) for lines in page_lines]
-    kept = [
-        [ln for ln in lines if not (_PAGE_NUMBER.fullmatch(ln.text) and _is_edge(ln, page))]
-        for lines, page in zip(kept, page_lines)
-    ]
-    return _assemble(kept, name)
-
-
-def _is_edge(line: _Line, page: list[_Line]) -> bool:
-    return line.number <= _EDGE_LINES or line.number > len(page) - _EDGE_LINES
+    return _assemble([_strip_running(lines, running) for lines in page_lines], name)
 
 
 def _assemble(pages: list[list[_Line]], name: str) -> SourceText:
