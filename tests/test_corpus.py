@@ -133,3 +133,98 @@ def test_damaged_twin_parses_the_same(entry):
     assert entry.expected == project(doc)
     notes = [d for d in doc.diagnostics if d.severity == "note"]
     assert notes, f"no repair note for damage {twin.kinds}"
+
+
+# --- The demo supporting information and its list of planted errors -------------------------
+
+import tomllib  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
+FAMILIES = {
+    "multiplicity-j-count", "j-on-singlet", "equal-j", "j-order", "partner-mismatch",
+    "reciprocity", "second-order", "integration", "carbon-count", "decoupled-multiplet",
+    "frequency", "impurity", "hrms-electron", "hrms-tolerance", "hrms-adduct", "ea-tolerance",
+    "form-order", "form-range-dash", "form-decimals", "form-missing-hz", "formula-mismatch",
+}
+
+
+def _demo_paragraphs() -> dict[str, str]:
+    """Compound label → its text from the heading to the next heading."""
+    text = (EXAMPLES / "demo_si.txt").read_text(encoding="utf-8")
+    out = {}
+    for chunk in text.split("\n## ")[1:]:
+        heading = chunk.splitlines()[0]
+        label = re.search(r"\(([0-9]+[a-z]?)\)\s*$", heading)
+        if label:
+            out[label.group(1)] = chunk
+    return out
+
+
+def _planted() -> list[dict]:
+    return tomllib.loads((EXAMPLES / "planted_errors.toml").read_text(encoding="utf-8"))["error"]
+
+
+def _families_of(label: str) -> set[str]:
+    return {e["family"] for e in _planted() if e["compound"] == label}
+
+
+class TestDemoSI:
+    def test_at_least_twelve_compounds(self):
+        """The demo holds at least 12 compound paragraphs."""
+        assert len(_demo_paragraphs()) >= 12
+
+    def test_every_family_planted(self):
+        """Each check family has at least one planted error."""
+        assert FAMILIES == {e["family"] for e in _planted()}
+
+    def test_one_or_two_errors_per_compound(self):
+        """Every compound carries one or two planted errors."""
+        labels = [e["compound"] for e in _planted()]
+        assert {k: labels.count(k) for k in _demo_paragraphs()} == {
+            k: min(max(labels.count(k), 1), 2) for k in _demo_paragraphs()
+        }
+
+    @pytest.mark.parametrize("error", _planted(), ids=lambda e: f"{e['compound']}:{e['family']}")
+    def test_excerpt_unique_in_paragraph(self, error):
+        """Each excerpt occurs exactly once in its compound's paragraph."""
+        assert _demo_paragraphs()[error["compound"]].count(error["excerpt"]) == 1
+
+    @pytest.mark.parametrize("label", sorted(_demo_paragraphs()))
+    def test_clean_parts_are_clean(self, label):
+        """Outside the planted errors, H and C counts, HRMS and EA agree with molmass."""
+        from molmass import Formula  # oracle: monoisotopic masses and mass fractions
+
+        para = _demo_paragraphs()[label]
+        planted = _families_of(label)
+        ms = re.search(
+            r"(\[M \+ Na\]\+|\[M \+ H\]\+|\[M\]\+•) calcd for (\w+) (\d+\.\d{4}), found (\d+\.\d{4})",
+            para,
+        )
+        assert ms, "every demo compound has an HRMS record"
+        ion, formula, calcd, found = ms.groups()
+        if "hrms-adduct" not in planted:
+            exact = Formula(f"[{formula}]+").monoisotopic_mass  # electron mass subtracted
+            if "hrms-electron" not in planted:
+                assert f"{exact:.4f}" == calcd
+            ppm = (float(found) - exact) / exact * 1e6
+            assert ("hrms-tolerance" in planted) == (abs(ppm) > 5)
+            neutral = Formula(formula).composition()
+            hydrogens = neutral["H"].count - (1 if ion == "[M + H]+" else 0)
+            carbons = neutral["C"].count
+            proton_list = para.split("1H NMR", 1)[1].split("13C{1H}", 1)[0]
+            counted = sum(int(n) for n in re.findall(r"\b(\d+)H[),]", proton_list))
+            assert ("integration" in planted) == (counted != hydrogens)
+            carbon_list = para.split("13C{1H} NMR", 1)[1].split(";", 1)[0].split(") δ", 1)[1]
+            signals = re.findall(r"(\d+\.\d)(?: \((?:[^()]*?(\d)C)?[^()]*\))?", carbon_list)
+            listed = sum(int(n) if n else 1 for _, n in signals)
+            assert ("carbon-count" in planted) == (listed != carbons)
+        ea = re.search(r"Anal\. Calcd for (\w+): (.*?)\. Found: ((?:[A-Z][a-z]?, \d+\.\d+(?:; )?)+)", para)
+        if ea:
+            composition = Formula(ea.group(1)).composition()
+            calcd = dict((s, float(v)) for s, v in re.findall(r"([A-Z][a-z]?), (\d+\.\d+)", ea.group(2)))
+            found = dict((s, float(v)) for s, v in re.findall(r"([A-Z][a-z]?), (\d+\.\d+)", ea.group(3)))
+            for symbol, value in calcd.items():
+                assert f"{composition[symbol].fraction * 100:.2f}" == f"{value:.2f}"
+            worst = max(abs(found[s] - calcd[s]) for s in calcd)
+            assert ("ea-tolerance" in planted) == (worst > 0.4)
