@@ -1,0 +1,253 @@
+"""The one module every write passes through: re-read, compare, re-format, then write atomically.
+
+Before any byte is written the new text is parsed again and its data compared with the
+input's; then it is formatted a second time, which must change nothing.  The comparison is
+on what chemists wrote — numbers with their decimals, letters, counts, assignments, notes,
+header conditions, mass-spec and analysis values — and :data:`ALLOWED_CHANGES` lists the only
+differences a style may make.  Any other difference raises :class:`UnsafeFormat` with a diff,
+and nothing is written.
+"""
+
+from __future__ import annotations
+
+import difflib
+import os
+import pprint
+import re
+import tempfile
+from dataclasses import dataclass
+
+from .emit import Change, Plan, plan_edits
+from .model import Document, Signal, Spectrum
+from .styles.base import Style
+
+#: What a style may change without changing the data, and how the comparison forgets it.
+ALLOWED_CHANGES: dict[str, str] = {
+    "spelling": "the glyphs and words of δ, '=', Hz, ppm, dashes, minus signs, separators and "
+    "multiplicity letters (p/quint, h/sext, hept/sept, bs/br s): compared after normalising",
+    "order of details": "the order of multiplicity, J, integration and assignment inside ( )",
+    "signal order": "the order of the signals of a list (compared as a sorted list)",
+    "range direction": "7.36–7.28 versus 7.28–7.36 (ranges compared low to high)",
+    "decimal commas": "7,26 becomes 7.26 (numbers compared as value and decimals)",
+    "header form": "1H NMR (…) δ versus δH (…); header conditions compared by value",
+    "item separators": "'; ' or '. ' between the items of a block",
+    "rounding": "only with --round: shifts and J rounded to the style's decimals, never padded",
+}
+
+_NUMBER = re.compile(r"[+\-\u2212]?(?:\d+(?:[.,]\d+)?|[.,]\d+)")
+_RANGE = re.compile(r"\s*([+\-\u2212]?(?:\d+(?:[.,]\d+)?|[.,]\d+))\s*(?:to|\S)\s*(\S+)\s*$")
+
+
+class UnsafeFormat(Exception):
+    """The formatter's output does not read back as the input's data (a bug of ours)."""
+
+    def __init__(self, message: str, diff: str):
+        super().__init__(message)
+        self.message = message
+        self.diff = diff
+
+
+@dataclass(frozen=True)
+class Result:
+    """A checked formatting of one text."""
+
+    text: str
+    plan: Plan
+    fixes: tuple[str, ...] = ()
+
+    @property
+    def changed(self) -> bool:
+        return bool(self.plan.edits)
+
+    @property
+    def changes(self) -> tuple[Change, ...]:
+        return self.plan.changes
+
+
+# ---- what "the same data" means ----------------------------------------------------------
+def written_number(text: str, decimals: int | None = None) -> tuple[float, int]:
+    """A written number as (value, decimals shown); rounded to ``decimals`` when given."""
+    clean = text.strip().replace(",", ".").replace("\u2212", "-")
+    places = len(clean) - clean.index(".") - 1 if "." in clean else 0
+    value = float(clean)
+    if decimals is not None and places > decimals:
+        return round(value, decimals), decimals
+    return value, places
+
+
+def fingerprint(doc: Document, style: type[Style] | None = None, rounding: bool = False):
+    """The document's data with the allowed changes forgotten; equal fingerprints = same data."""
+    return tuple(_block_print(b, style if rounding else None) for b in doc.blocks)
+
+
+def _block_print(block, style):
+    return (
+        block.compound,
+        tuple(_spectrum_print(s, style) for s in block.spectra),
+        tuple(m.data() for m in block.mass_spec),
+        tuple(a.data() for a in block.analyses),
+        tuple(o.data() for o in block.others),
+    )
+
+
+def _spectrum_print(s: Spectrum, style):
+    decimals = style.shift_decimals(s.nucleus) if style else None
+    j_decimals = style.j_decimals if style else None
+    sizes: dict[int, int] = {}
+    for sig in s.signals:
+        if sig.group:
+            sizes[sig.group] = sizes.get(sig.group, 0) + 1
+    signals = sorted(
+        (_signal_print(sig, decimals, j_decimals, sizes.get(sig.group, 1)) for sig in s.signals),
+        key=repr,
+    )
+    return (
+        s.nucleus, s.decoupled, s.frequency_mhz, s.solvent, s.solvent_normalized, s.temperature_k,
+        s.reference, tuple(" ".join(c.split()) for c in s.conditions), tuple(signals),
+    )  # fmt: skip
+
+
+def _signal_print(sig: Signal, decimals, j_decimals, group_size: int):
+    if sig.range is not None:
+        m = _RANGE.match(sig.shift_text)
+        bounds = [written_number(m.group(1), decimals), written_number(m.group(2), decimals)]
+        shift = tuple(sorted(bounds))
+    else:
+        shift = (written_number(sig.shift_text, decimals),)
+    couplings = tuple(
+        (written_number(c.text or repr(c.value), j_decimals), c.nuclei, c.bonds, c.label)
+        for c in sig.couplings
+    )
+    return (
+        shift,
+        sig.multiplicity.data() if sig.multiplicity else None,
+        couplings,
+        sig.count,
+        sig.count_nucleus,
+        sig.assignment,
+        sig.notes,
+        group_size,
+    )
+
+
+def data_diff(before, after) -> str:
+    a = pprint.pformat(before, width=100).splitlines()
+    b = pprint.pformat(after, width=100).splitlines()
+    return "\n".join(difflib.unified_diff(a, b, "input data", "output data", lineterm=""))
+
+
+# ---- checked formatting ------------------------------------------------------------------
+def checked_format(
+    text: str, style: type[Style], *, round_numbers: bool = False, path: str | None = None,
+    doc: Document | None = None,
+) -> Result:  # fmt: skip
+    """Format ``text`` in ``style``, proving the result safe; raises :class:`UnsafeFormat`."""
+    from . import parse
+
+    doc = doc if doc is not None else parse(text, path=path)
+    plan = plan_edits(doc, style, round_numbers=round_numbers)
+    new_text = plan.apply(text)
+    if not plan.edits:
+        return Result(new_text, plan)
+    verify(doc, new_text, style, round_numbers=round_numbers)
+    again = plan_edits(parse(new_text, path=path), style, round_numbers=round_numbers)
+    if again.edits:
+        second = again.apply(new_text)
+        diff = "\n".join(difflib.unified_diff(
+            new_text.splitlines(), second.splitlines(), "first pass", "second pass", lineterm=""))  # fmt: skip
+        raise UnsafeFormat("formatting the output again changes it (not idempotent)", diff)
+    return Result(new_text, plan)
+
+
+def verify(before: Document, new_text: str, style: type[Style], *, round_numbers: bool = False):
+    """Raise :class:`UnsafeFormat` unless ``new_text`` reads back as ``before``'s data."""
+    from . import parse
+
+    after = parse(new_text)
+    new_errors = _errors(after) - _errors(before)
+    if new_errors:
+        raise UnsafeFormat("the output has reading errors the input did not have",
+                           "\n".join(sorted(new_errors)))  # fmt: skip
+    a = fingerprint(before, style, rounding=round_numbers)
+    b = fingerprint(after, style, rounding=round_numbers)
+    if a != b:
+        raise UnsafeFormat("the output does not read back as the same data", data_diff(a, b))
+
+
+def _errors(doc: Document) -> set[str]:
+    return {f"{d.rule}: {d.message}" for d in doc.diagnostics if d.severity == "error"}
+
+
+# ---- checker fixes -----------------------------------------------------------------------
+def apply_fixes(text: str, diagnostics) -> tuple[str, list[str]]:
+    """Apply the machine-readable suggestions of ``diagnostics``; overlapping ones are skipped.
+
+    A suggestion is ``{"description": str, "replace": [{"start", "end", "text"}, …]}`` in
+    document offsets (or the model's ``{"span": Span, "replacement": str}``).
+    """
+    chosen: list[tuple[int, int, str]] = []
+    applied: list[str] = []
+    taken: list[tuple[int, int]] = []
+    for d in sorted(diagnostics, key=lambda d: d.span.start):
+        s = d.suggestion
+        if not s:
+            continue
+        if "replace" in s:
+            edits = [(int(r["start"]), int(r["end"]), str(r["text"])) for r in s["replace"]]
+        elif "span" in s and "replacement" in s:
+            span = s["span"]
+            start, end = (span.start, span.end) if hasattr(span, "start") else (span["start"], span["end"])
+            edits = [(start, end, str(s["replacement"]))]
+        else:
+            continue
+        if any(a < e2 and s2 < b or a == b == s2 for a, b, _ in edits for s2, e2 in taken):
+            applied.append(f"line {d.span.line}: skipped {d.rule} (overlaps an earlier fix)")
+            continue
+        chosen.extend(edits)
+        taken.extend((a, b) for a, b, _ in edits)
+        what = s.get("description") or d.message
+        applied.append(f"line {d.span.line}: {d.rule}: {what}")
+    from .emit import apply_edits
+
+    return apply_edits(text, chosen), applied
+
+
+# ---- writing -----------------------------------------------------------------------------
+def write_atomically(path: str | os.PathLike, data: bytes) -> None:
+    """Write ``data`` to a temporary file beside ``path``, then move it into place."""
+    path = os.fspath(path)
+    folder = os.path.dirname(os.path.abspath(path))
+    fd, tmp = tempfile.mkstemp(prefix=".peakproof-", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as handle:
+            handle.write(data)
+            handle.flush()
+            os.fsync(handle.fileno())
+        try:
+            os.chmod(tmp, os.stat(path).st_mode & 0o7777)
+        except OSError:
+            pass
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+
+
+def write_docx(path: str | os.PathLike, edits, expected_text: str) -> None:
+    """Rewrite only the runs the edits cover; the result is read back before it replaces ``path``."""
+    from .readers import read_document, write_docx_runs
+
+    path = os.fspath(path)
+    folder = os.path.dirname(os.path.abspath(path))
+    fd, tmp = tempfile.mkstemp(prefix=".peakproof-", suffix=".docx", dir=folder)
+    os.close(fd)
+    try:
+        write_docx_runs(path, tmp, edits)
+        if read_document(tmp, fmt="docx").text != expected_text:
+            raise UnsafeFormat("the rewritten Word file does not read back as the new text", "")
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
