@@ -77,12 +77,16 @@ def _reach_back(text: str, core: int, floor: int) -> int:
     return best
 
 
+_SIGNIFICANT = re.compile(r"[()\[\]{}\n.]")
+
+
 def _block_end(text: str, start: int) -> int:
+    """Where the block that starts at ``start`` ends (jumping between the characters that matter)."""
     depth = 0
-    i = start
     n = len(text)
-    last_data = start
-    while i < n:
+    stop = n
+    for m in _SIGNIFICANT.finditer(text, start):
+        i = m.start()
         ch = text[i]
         if ch in "([{":
             depth += 1
@@ -92,31 +96,22 @@ def _block_end(text: str, start: int) -> int:
             j = i + 1
             while j < n and text[j] in " \t\r":
                 j += 1
-            if j < n and text[j] == "\n":
-                break  # blank line
-            if _HEADING_LINE.match(text, i):
+            if j < n and text[j] == "\n" or _HEADING_LINE.match(text, i):
+                stop = i
                 break
-        elif ch == "." and depth == 0:
+        elif depth == 0:  # a full stop
             j = i + 1
             if j >= n:
-                i += 1
-                last_data = i
-                break
+                return n
             if text[j] in " \t\r\n":
                 k = j
                 while k < n and text[k] in " \t\r\n":
                     k += 1
                 if k >= n:
-                    last_data = i + 1
-                    break
-                nxt = text[k]
-                if nxt.isupper() and not (CORE_START.match(text, k) or _CONTINUE_WORDS.match(text, k)):
-                    last_data = i + 1
-                    break
-        if not ch.isspace():
-            last_data = i + 1
-        i += 1
-    return last_data
+                    return i + 1
+                if text[k].isupper() and not (CORE_START.match(text, k) or _CONTINUE_WORDS.match(text, k)):
+                    return i + 1
+    return len(text[:stop].rstrip()) if stop > start else start
 
 
 def _markers(text: str, floor: int, end: int) -> tuple[str, ...]:

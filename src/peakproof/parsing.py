@@ -17,7 +17,7 @@ from .locate import CORE_START, OTHER_START, locate
 from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
 from .repair import Repaired, repair
 from .span import Diagnostic, LineIndex
-from .transform import BlockBuilder, Context
+from .transform import BlockBuilder, Context, FastPatterns
 
 GRAMMAR_DIR = Path(__file__).resolve().parent / "grammar"
 
@@ -69,10 +69,14 @@ def _grammar_files() -> list[Path]:
     return sorted(GRAMMAR_DIR.glob("*.lark"))
 
 
-@lru_cache(maxsize=1)
-def _builder_and_parser() -> tuple[BlockBuilder, Lark]:
-    """The LALR parser with the transformer inside, built once and cached on disk."""
-    digest = hashlib.sha256()
+@lru_cache(maxsize=2)
+def _builder_and_parser(fast: bool = True) -> tuple[BlockBuilder, Lark]:
+    """The LALR parser with the transformer inside, built once and cached on disk.
+
+    ``fast=False`` drops the fast-path tokens (SIGNAL, BARE_SHIFT) so tests can check that both
+    ways of reading give the same model.
+    """
+    digest = hashlib.sha256(b"fast" if fast else b"slow")
     for path in _grammar_files():
         digest.update(path.name.encode())
         digest.update(path.read_bytes())
@@ -90,15 +94,20 @@ def _builder_and_parser() -> tuple[BlockBuilder, Lark]:
         maybe_placeholders=False,
     )
     grammar_path = GRAMMAR_DIR / "peaks.lark"
+    grammar = grammar_path.read_text(encoding="utf-8")
+    if not fast:
+        grammar = re.sub(r"\n\s*\| (?:SIGNAL|BARE_SHIFT|HEADER)\b[^\n]*", "", grammar)
+    options.update(import_paths=[str(GRAMMAR_DIR)], source_path=str(grammar_path))
     try:
-        parser = Lark.open(str(grammar_path), cache=str(cache), **options)
+        parser = Lark(grammar, cache=str(cache), **options)
     except (OSError, PermissionError):
-        parser = Lark.open(str(grammar_path), **options)
+        parser = Lark(grammar, **options)
+    builder.fast = FastPatterns(lambda name: parser.get_terminal(name).pattern.to_regexp())
     return builder, parser
 
 
 # ---- public entry points ---------------------------------------------------------------------
-def parse(text: str, *, path: str | None = None) -> Document:
+def parse(text: str, *, path: str | None = None, fast: bool = True) -> Document:
     """Read every data block in ``text``.  Never raises on bad input: problems become diagnostics."""
     if not isinstance(text, str):
         raise TypeError(f"parse() takes text (str), not {type(text).__name__}")
@@ -106,7 +115,7 @@ def parse(text: str, *, path: str | None = None) -> Document:
     blocks: list[Block] = []
     diagnostics: list[Diagnostic] = []
     for i, located in enumerate(locate(text)):
-        block, diags = parse_block(text, located.start, located.end, index)
+        block, diags = parse_block(text, located.start, located.end, index, fast=fast)
         blocks.append(_with(block, index=i, suppressed=located.suppressed))
         diagnostics.extend(diags)
     blocks = attach_compounds(text, blocks, index)
@@ -119,9 +128,9 @@ def _with(block: Block, **changes) -> Block:
     return replace(block, **changes)
 
 
-def parse_block(text: str, start: int, end: int, index: LineIndex) -> tuple[Block, list[Diagnostic]]:
+def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool = True) -> tuple[Block, list[Diagnostic]]:
     """Parse ``text[start:end]``; on a syntax error, read it piece by piece."""
-    builder, parser = _builder_and_parser()
+    builder, parser = _builder_and_parser(fast)
     raw = text[start:end]
     repaired = repair(raw)
     ctx = Context(start, repaired, index)

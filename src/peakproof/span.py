@@ -4,11 +4,10 @@ from __future__ import annotations
 
 from bisect import bisect_right
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, NamedTuple
 
 
-@dataclass(frozen=True, slots=True)
-class Span:
+class Span(NamedTuple):
     """A half-open range ``[start, end)`` of character offsets in the original text.
 
     ``line`` and ``column`` are 1-based and describe ``start``; ``end_line`` and
@@ -38,6 +37,9 @@ class Span:
         return text[self.start : self.end]
 
 
+_new_span = Span._make
+
+
 class LineIndex:
     """Turns offsets into 1-based line and column numbers for one text."""
 
@@ -62,7 +64,7 @@ class LineIndex:
         row = bisect_right(starts, start) - 1
         last = end - 1 if end > start else start
         erow = bisect_right(starts, last, row) - 1
-        return Span(start, end, row + 1, start - starts[row] + 1, erow + 1, last - starts[erow] + 1)
+        return _new_span((start, end, row + 1, start - starts[row] + 1, erow + 1, last - starts[erow] + 1))
 
     def line_text(self, line: int) -> str:
         start = self._starts[line - 1]

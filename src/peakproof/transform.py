@@ -79,12 +79,29 @@ def _stripped_end(token: Token) -> int:
     return token.start_pos + len(token.value.rstrip())
 
 
+class FastPatterns:
+    """The terminal patterns the fast-path tokens are made of, compiled for splitting them."""
+
+    def __init__(self, pattern_of):
+        self.number = re.compile(pattern_of("NUMBER"))
+        self.mult = re.compile(pattern_of("MULT"))
+        self.count = re.compile(pattern_of("COUNT"))
+        self.j_item = re.compile(
+            f"({pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?({pattern_of('NUMBER')})(?:\\s?{pattern_of('HZ')})?"
+        )
+        self.bare_j = re.compile(f"({pattern_of('NUMBER')})(?:\\s?{pattern_of('HZ')})?")
+        self.spec_head = re.compile(pattern_of("SPEC_HEAD"))
+        self.freq = re.compile(pattern_of("FREQ"))
+        self.temp = re.compile(pattern_of("TEMP"))
+
+
 class BlockBuilder(Transformer):
     """Builds model nodes bottom-up while the LALR parser reduces."""
 
     def __init__(self):
         super().__init__(visit_tokens=False)
         self.ctx: Context | None = None
+        self.fast: FastPatterns | None = None
 
     # ---- signals -------------------------------------------------------------------------
     def shift(self, c):
@@ -179,6 +196,8 @@ class BlockBuilder(Transformer):
         return (mult, tuple(couplings), count, assignment, notes, c[0].start_pos, c[-1].end_pos)
 
     def entry(self, c):
+        if isinstance(c[0], Token):  # the fast-path tokens
+            return self._fast_entry(c[0])
         shift = c[0]
         details = None
         ppm = False
@@ -188,6 +207,75 @@ class BlockBuilder(Transformer):
             else:
                 details = item
         return (shift, details)
+
+    def _fast_entry(self, tok: Token):
+        """Split a SIGNAL or BARE_SHIFT token exactly as the token-by-token rules would."""
+        fast = self.fast
+        text = tok.value
+        base = tok.start_pos
+        paren = text.find("(")
+        head = text if paren < 0 else text[:paren]
+        numbers = list(fast.number.finditer(head))
+        first, last = numbers[0], numbers[-1]
+        s_start, s_end = base + first.start(), base + last.end()
+        shift_text = text[first.start() : last.end()]
+        if len(numbers) == 1:
+            shift = (number(first.group(0)), None, shift_text, s_start, s_end)
+        else:
+            shift = (None, (number(first.group(0)), number(last.group(0))), shift_text, s_start, s_end)
+        if paren < 0:
+            return (shift, None)
+        close = text.rfind(")")
+        mult = None
+        couplings: list[Coupling] = []
+        count = None
+        assignment: list[str] = []
+        notes: list[str] = []
+        span = self.ctx.span
+        pos = paren + 1
+        for raw in text[paren + 1 : close].split(","):
+            lead = len(raw) - len(raw.lstrip())
+            item = raw.strip()
+            at = base + pos + lead
+            pos += len(raw) + 1
+            if fast.mult.fullmatch(item):
+                name, components, broad, apparent, kind, multiplier = multiplicity_parts(item)
+                m = Multiplicity(name=name, span=span(at, at + len(item)), written=item,
+                                 components=components, broad=broad, apparent=apparent,
+                                 kind=kind, multiplier=multiplier)
+                if mult is None:
+                    mult = m
+                else:
+                    notes.append(item)
+                continue
+            jm = fast.j_item.fullmatch(item)
+            if jm:
+                bonds, nuclei, label = coupling_label(jm.group(1))
+                label_start = at + len(jm.group(1)) - len(jm.group(1).lstrip())
+                value = jm.group(2)
+                couplings.append(Coupling(
+                    value=number(value), span=span(label_start, at + jm.end(2)),
+                    text=value.replace("\u2212", "-").replace(",", "."),
+                    nuclei=nuclei, bonds=bonds, label=label))
+                continue
+            cm = _COUNT.match(" ".join(item.split())) if fast.count.fullmatch(item) else None
+            if cm:
+                if count is None:
+                    value = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
+                    count = ("count", value, cm.group("nuc"), item, bool(cm.group("each")),
+                             at, at + len(item))
+                else:
+                    notes.append(item)
+                continue
+            nm = fast.bare_j.fullmatch(item)
+            if nm:
+                value = nm.group(1)
+                couplings.append(Coupling(value=number(value), span=span(at, at + nm.end(1)),
+                                          text=value.replace("\u2212", "-").replace(",", ".")))
+                continue
+            free_text = " ".join(item.split())
+            (notes if is_note(free_text) else assignment).append(free_text)
+        return (shift, (mult, tuple(couplings), count, assignment, notes, base + paren, base + close + 1))
 
     def signal_list(self, c):
         entries = [e for e in c if not isinstance(e, Token)]
@@ -287,10 +375,34 @@ class BlockBuilder(Transformer):
     def spectrum(self, c):
         return self._spectrum(c, signals=None)
 
+    def _split_header(self, tok: Token):
+        """A HEADER token as the SPEC_HEAD token and condition tokens the slow rules would give."""
+        fast = self.fast
+        text = tok.value
+        base = tok.start_pos
+        m = fast.spec_head.match(text)
+        head = Token("SPEC_HEAD", m.group(0), start_pos=base, end_pos=base + m.end())
+        open_at = text.index("(", m.end())
+        close_at = text.rindex(")")
+        conditions = []
+        pos = open_at + 1
+        for raw in re.split(r"[,;]", text[open_at + 1 : close_at]):
+            lead = len(raw) - len(raw.lstrip())
+            item = raw.strip()
+            at = base + pos + lead
+            pos += len(raw) + 1
+            kind = "FREQ" if fast.freq.fullmatch(item) else "TEMP" if fast.temp.fullmatch(item) else "SOLVENT"
+            conditions.append([Token(kind, item, start_pos=at, end_pos=at + len(item))])
+        return head, conditions
+
     def _spectrum(self, c, signals):
         head = c[0]
         conditions: list = []
         delta = None
+        if head.type == "HEADER":
+            header_tok = head
+            head, conditions = self._split_header(head)
+            c = [header_tok, *c[1:]]
         for item in c[1:]:
             if isinstance(item, tuple) and len(item) == 2 and isinstance(item[0], list):
                 conditions, delta = item

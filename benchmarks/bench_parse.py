@@ -1,0 +1,105 @@
+"""Parse throughput, memory and start-up, each as a ratio measured in this one run.
+
+    python benchmarks/bench_parse.py [--blocks 10000] [--repeat 5]
+
+Prints blocks/s, MB/s and peak memory for parsing a generated document, and the ratio of the
+reader's time to one compiled regular-expression ``finditer`` scan of the same text extracting
+the same tokens (targets: ≤ 6×, never above 10×).  Then the start-up of a fresh
+``python -m peakproof parse`` on a one-paragraph file against ``python -c "import lark"``
+(target ≤ 1.5×).  Medians of the repetitions.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import re
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+import tracemalloc
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from generate import document  # noqa: E402
+
+# The tokens the reader extracts, as one compiled alternation (what a hand-written scanner
+# would need to find): headers, numbers, multiplicities, J labels, counts, brackets, separators.
+TOKEN_SCAN = re.compile(
+    r"\d{1,3}[A-Z][a-z]?(?:\{[^}]*\})? NMR|HRMS|\[M[^\]]*\]\+|calcd for|found|m/z|\([A-Z]+\)"
+    r"|[-−]?\d+(?:[.,]\d+)?(?: ?MHz| ?Hz)?|\d+H\b|br s|\b(?:[dtqm]+|s)\b|J ?=|CDCl3|δ|[(),;.]"
+)
+
+
+def median_time(fn, repeat: int) -> float:
+    times = []
+    for _ in range(repeat):
+        t0 = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t0)
+    return statistics.median(times)
+
+
+def startup(repeat: int) -> tuple[float, float]:
+    with tempfile.NamedTemporaryFile("w", suffix=".txt", delete=False) as f:
+        f.write("1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), 3.80 (s, 3H).\n")
+        path = f.name
+    ours = [sys.executable, "-m", "peakproof", "parse", path]
+    lark_only = [sys.executable, "-c", "import lark"]
+    subprocess.run(ours, capture_output=True, check=True)  # warm the grammar cache
+
+    def run(cmd):
+        return lambda: subprocess.run(cmd, capture_output=True, check=True)
+
+    a, b = [], []
+    for _ in range(repeat):  # interleaved, so load on the machine hits both alike
+        a.append(median_time(run(ours), 1))
+        b.append(median_time(run(lark_only), 1))
+    os.unlink(path)
+    return statistics.median(a), statistics.median(b)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--blocks", type=int, default=10_000)
+    ap.add_argument("--repeat", type=int, default=5)
+    args = ap.parse_args()
+
+    import peakproof
+
+    text = document(args.blocks)
+    mb = len(text.encode()) / 1e6
+    peakproof.parse(text[:2000])  # build the parser once
+
+    t_parse = median_time(lambda: peakproof.parse(text), args.repeat)
+    t_scan = median_time(lambda: sum(1 for _ in TOKEN_SCAN.finditer(text)), args.repeat)
+    doc = peakproof.parse(text)
+    assert len(doc.blocks) == args.blocks, (len(doc.blocks), args.blocks)
+
+    tracemalloc.start()
+    small = document(args.blocks // 10)
+    tracemalloc.reset_peak()
+    peakproof.parse(small)
+    peak_small = tracemalloc.get_traced_memory()[1]
+    tracemalloc.reset_peak()
+    peakproof.parse(text)
+    peak_full = tracemalloc.get_traced_memory()[1]
+    tracemalloc.stop()
+
+    t_ours, t_lark = startup(args.repeat + 4)
+    print(f"document: {args.blocks} blocks, {mb:.2f} MB")
+    print(f"parse: {t_parse:.3f} s  ({args.blocks / t_parse:,.0f} blocks/s, {mb / t_parse:.2f} MB/s)")
+    print(f"regex finditer scan of the same tokens: {t_scan:.3f} s")
+    print(f"ratio parse / scan: {t_parse / t_scan:.2f}x  (target <= 6x, limit 10x)")
+    print(f"peak memory: {peak_small / 1e6:.1f} MB for {args.blocks // 10} blocks, "
+          f"{peak_full / 1e6:.1f} MB for {args.blocks} blocks "
+          f"(per block {peak_small / (args.blocks // 10) / 1e3:.1f} kB vs {peak_full / args.blocks / 1e3:.1f} kB; "
+          "the model is kept, so memory grows with the document)")
+    print(f"start-up: peakproof parse {t_ours * 1000:.0f} ms, import lark {t_lark * 1000:.0f} ms, "
+          f"ratio {t_ours / t_lark:.2f}x (target <= 1.5x)")
+
+
+if __name__ == "__main__":
+    main()
