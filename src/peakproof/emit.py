@@ -152,8 +152,8 @@ class Emitter:
         if order == "as-written" or len(units) < 2:
             return units
         descending = order == "descending"
-        key = (lambda u: max(s.position for s in u)) if descending else (
-            lambda u: min(s.position for s in u))  # fmt: skip
+        key = (lambda u: max(_position(s) for s in u)) if descending else (
+            lambda u: min(_position(s) for s in u))  # fmt: skip
         ordered = sorted(units, key=key, reverse=descending)
         if ordered != units:
             if _regroups(ordered):
@@ -178,9 +178,8 @@ class Emitter:
         span = signal.shift_span or signal.span
         if signal.range is None:
             return self.number(signal.shift_text, decimals, span)
-        bounds = _RANGE.match(signal.shift_text)
-        first, last = bounds.group(1), bounds.group(2)
-        a, b = signal.range
+        first, last = _bounds(signal)
+        a, b = _number_value(first), _number_value(last)
         direction = self.style.range_direction
         if (direction == "descending" and a < b) or (direction == "ascending" and a > b):
             first, last = last, first
@@ -316,6 +315,23 @@ def fill_template(template: str, fields: dict[str, str | None]) -> str:
         text = text[: m.start()] + (inner.replace("\x00", "") + "\x00" if keep else "") + text[m.end() :]
     text = text.replace("\x00", "")
     return _FIELD.sub(lambda mm: str(fields.get(mm.group(1)) or ""), text)
+
+
+def _number_value(text: str) -> float:
+    return float(text.replace(",", ".").replace("\u2212", "-"))
+
+
+def _bounds(signal: Signal) -> tuple[str, str]:
+    """A range's bounds as written (read from the text: a hyphen is a dash, not a minus)."""
+    m = _RANGE.match(signal.shift_text)
+    return m.group(1), m.group(2)
+
+
+def _position(signal: Signal) -> float:
+    if signal.range is None:
+        return signal.position
+    a, b = _bounds(signal)
+    return (_number_value(a) + _number_value(b)) / 2
 
 
 def _regroups(units: list[list[Signal]]) -> bool:
