@@ -176,7 +176,13 @@ def _format_one(path, style, args, check, counts) -> int:
     try:
         work = text
         if check is not None:
-            work, fixes = apply_fixes(text, check(parse(text, path=name)))
+            try:
+                findings = check(parse(text, path=name))
+            except Exception as exc:  # the checker is another module: say so, do not crash
+                print(f"peakproof: {name}: --fix: the checker failed ({type(exc).__name__}: "
+                      f"{exc}); nothing was written; run without --fix", file=sys.stderr)  # fmt: skip
+                return EXIT_USAGE
+            work, fixes = apply_fixes(text, findings)
         result = checked_format(work, style, round_numbers=args.round, path=name)
         if fixes:  # the fixes changed the data on purpose: check the fixed text reads cleanly
             from .safety import verify
