@@ -13,11 +13,10 @@ from __future__ import annotations
 import difflib
 import os
 import pprint
-import re
 import tempfile
 from dataclasses import dataclass
 
-from .emit import Change, Plan, plan_edits
+from .emit import _RANGE, Change, Plan, plan_edits
 from .model import Document, Signal, Spectrum
 from .styles.base import Style
 
@@ -34,8 +33,6 @@ ALLOWED_CHANGES: dict[str, str] = {
     "rounding": "only with --round: shifts and J rounded to the style's decimals, never padded",
 }
 
-_NUMBER = re.compile(r"[+\-\u2212]?(?:\d+(?:[.,]\d+)?|[.,]\d+)")
-_RANGE = re.compile(r"\s*([+\-\u2212]?(?:\d+(?:[.,]\d+)?|[.,]\d+))\s*(?:to|\S)\s*(\S+)\s*$")
 
 
 class UnsafeFormat(Exception):
