@@ -19,14 +19,17 @@ CORE_START = re.compile(
     r"|(?<![\w])(?:Elemental\s+[Aa]nalysis|Microanalysis)\b"
 )
 OTHER_START = re.compile(
-    r"(?:^|(?<=[;,.]\s)|(?<=[;,]))\s*"
-    r"(?:(?:IR|FT-?IR|ATR-?IR|FTIR|mp|m\.p\.|Mp|M\.p\.|M\.P\.|MP|bp|b\.p\.|Rf|R_f|TLC|UV(?:[/\-]vis)?|LRMS|HPLC|Optical rotation|Specific rotation)(?![A-Za-z])|\[α\]|ν(?:max)?\s)"
+    r"(?:^|(?<=\n)|(?<=[;,.]\s)|(?<=[;,]))[ \t]*"
+    r"(?:(?:IR|FT-?IR|ATR-?IR|FTIR|mp|m\.p\.|Mp|M\.p\.|M\.P\.|MP|bp|b\.p\.|Rf|R_f|TLC|UV(?:[/\-]vis)?|LRMS|MS|GC-?MS|LC-?MS|HPLC|Yield|Optical rotation|Specific rotation)(?![A-Za-z])|\[α\]|ν(?:max)?|λmax)"
+)
+_SENTENCE_BREAK = re.compile(
+    r"\.\s+|\n[ \t]*\n\s*|\n(?=[ \t]*(?:" + OTHER_START.pattern[OTHER_START.pattern.index("(?:(?:"):] + "))"
 )
 _CONTINUE_WORDS = re.compile(
     r"(?:Found|Calcd|Calc|Anal|Elemental|HRMS|HR|IR|FT|ATR|Rf|R_f|UV|MS|LRMS|Mp|M\.p|MP|TLC|HPLC|Microanalysis|Optical|Specific)(?![a-z])"
 )
 _HEADING_LINE = re.compile(r"\n[ \t]*(?:#{1,6}\s|\\(?:sub)*section|\*\*[A-Z0-9])")
-_LOOKS_LIKE_DATA = re.compile(r"[^.]{0,100}?(?:[δ=]|\bd\s?[-−]?\d|[-−]?\d+(?:[.,]\d+)?\s?(?:\(|,|;|$))", re.S)
+_LOOKS_LIKE_DATA = re.compile(r".{0,120}?(?:[δ=]|\bd\s*[-−+]?\d|[-−+]?\d+(?:[.,]\d+)?\s*(?:\(|,|;|$))", re.S)
 MARKER = re.compile(r"peakproof:\s*ignore\s+([A-Za-z0-9_\-]+(?:\s*,\s*[A-Za-z0-9_\-]+)*)")
 
 
@@ -64,17 +67,25 @@ def locate(text: str) -> list[Located]:
 
 
 def _reach_back(text: str, core: int, floor: int) -> int:
-    """Include other items (mp, Rf, IR…) written in the same sentence just before the core item."""
-    window_start = max(floor, core - 400)
-    window = text[window_start:core]
-    # The sentence that holds the core item starts after the last full stop + space or blank line.
-    cut = max(window.rfind(". "), window.rfind("\n\n"), window.rfind(".\n"))
-    sentence_start = window_start + (cut + 2 if cut >= 0 else 0)
-    best = core
-    for m in OTHER_START.finditer(text, sentence_start, core):
-        best = m.start() + (len(m.group(0)) - len(m.group(0).lstrip()))
-        break
-    return best
+    """Include other items (mp, Rf, IR…) written before the core item: earlier in its sentence,
+    or as whole sentences of their own just before it ("Rf 0.31 (…); mp 77–79 °C. 1H NMR …")."""
+    start = core
+    while True:
+        window_start = max(floor, start - 400)
+        sentence_start = window_start
+        for m in _SENTENCE_BREAK.finditer(text, window_start, max(window_start, start - 1)):
+            sentence_start = m.end()
+        first = None
+        for m in OTHER_START.finditer(text, sentence_start, start):
+            first = m.start() + (len(m.group(0)) - len(m.group(0).lstrip()))
+            break
+        if first is None:
+            return start
+        if text[sentence_start:first].strip() or first == start:
+            return first  # prose, then items: the block starts at the first item
+        start = first  # a whole sentence of items: look at the sentence before it too
+        if start <= floor:
+            return start
 
 
 _SIGNIFICANT = re.compile(r"[()\[\]{}\n.]")

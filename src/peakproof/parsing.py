@@ -15,7 +15,7 @@ from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput
 from .compounds import attach_compounds
 from .locate import CORE_START, OTHER_START, locate
 from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
-from .repair import Repaired, repair
+from .repair import Repaired, normalize_for_locating, repair
 from .span import Diagnostic, LineIndex
 from .transform import BlockBuilder, Context, FastPatterns
 
@@ -114,8 +114,10 @@ def parse(text: str, *, path: str | None = None, fast: bool = True) -> Document:
     index = LineIndex(text)
     blocks: list[Block] = []
     diagnostics: list[Diagnostic] = []
-    for i, located in enumerate(locate(text)):
-        block, diags = parse_block(text, located.start, located.end, index, fast=fast)
+    view = normalize_for_locating(text)
+    for i, located in enumerate(locate(view.text)):
+        start, end = view.original(located.start), view.original_end(located.end)
+        block, diags = parse_block(text, start, end, index, fast=fast)
         blocks.append(_with(block, index=i, suppressed=located.suppressed))
         diagnostics.extend(diags)
     blocks = attach_compounds(text, blocks, index)

@@ -24,7 +24,7 @@ _QUARTER = re.compile(r"¼")
 _PAREN_EQ = re.compile(r"(J[A-Za-z(),–\-]{0,6}\s?)\)(\s?\d)")
 # A stray "d" for δ: after the header's parenthesis or colon, or as "dH (…".
 _STRAY_DELTA = re.compile(
-    r"(NMR\s*(?:\([^()]*(?:\([^()]*\)[^()]*)*\))?\s*:?\s*)d(\s?(?:\(ppm\))?\s?[=:]?\s*[-−]?\d)"
+    r"(NMR\s*(?:\([^()]*(?:\([^()]*\)[^()]*)*\))?\s*:?\s*)d(\s*(?:\(ppm\))?\s*[=:]?\s*[-−+]?\d)"
     r"|(NMR\s*)d(\s?\()"
     r"|((?:^|[;.]\s)\s*)d([HCF]\s?\()"
 )
@@ -62,6 +62,23 @@ class Repaired:
         if i <= 0:
             return self.original(0)
         return self.original(i - 1) + 1
+
+
+def normalize_for_locating(text: str) -> Repaired:
+    """Remove invisible characters and expand ligatures document-wide, so the locator sees words
+    whole ("Elem\u00adental analysis"); the offset map leads back to the original."""
+    if not any(c in text for c in _DELETED) and not any(c in text for c in _LIGATURES):
+        return Repaired(text, None, [])
+    chars: list[str] = []
+    offsets: list[int] = []
+    for i, ch in enumerate(text):
+        if ch in _DELETED:
+            continue
+        rep = _LIGATURES.get(ch, ch)
+        for r in rep:
+            chars.append(r)
+            offsets.append(i)
+    return Repaired("".join(chars), offsets, [])
 
 
 def repair(text: str) -> Repaired:

@@ -91,6 +91,9 @@ class FastPatterns:
         )
         self.bare_j = re.compile(f"({pattern_of('NUMBER')})(?:\\s?{pattern_of('HZ')})?")
         self.spec_head = re.compile(pattern_of("SPEC_HEAD"))
+        self.shift_head = re.compile(
+            f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
+        )
         self.freq = re.compile(pattern_of("FREQ"))
         self.temp = re.compile(pattern_of("TEMP"))
 
@@ -214,15 +217,13 @@ class BlockBuilder(Transformer):
         text = tok.value
         base = tok.start_pos
         paren = text.find("(")
-        head = text if paren < 0 else text[:paren]
-        numbers = list(fast.number.finditer(head))
-        first, last = numbers[0], numbers[-1]
-        s_start, s_end = base + first.start(), base + last.end()
-        shift_text = text[first.start() : last.end()]
-        if len(numbers) == 1:
-            shift = (number(first.group(0)), None, shift_text, s_start, s_end)
+        hm = fast.shift_head.match(text)
+        s_start, s_end = base + hm.start(1), base + hm.end(hm.lastindex)
+        shift_text = text[hm.start(1) : hm.end(hm.lastindex)]
+        if hm.group(2) is None:
+            shift = (number(hm.group(1)), None, shift_text, s_start, s_end)
         else:
-            shift = (None, (number(first.group(0)), number(last.group(0))), shift_text, s_start, s_end)
+            shift = (None, (number(hm.group(1)), number(hm.group(2))), shift_text, s_start, s_end)
         if paren < 0:
             return (shift, None)
         close = text.rfind(")")
@@ -383,7 +384,11 @@ class BlockBuilder(Transformer):
         m = fast.spec_head.match(text)
         head = Token("SPEC_HEAD", m.group(0), start_pos=base, end_pos=base + m.end())
         open_at = text.index("(", m.end())
-        close_at = text.rindex(")")
+        depth, close_at = 0, open_at
+        for close_at in range(open_at, len(text)):
+            depth += {"(": 1, ")": -1}.get(text[close_at], 0)
+            if depth == 0:
+                break
         conditions = []
         pos = open_at + 1
         for raw in re.split(r"[,;]", text[open_at + 1 : close_at]):
@@ -433,15 +438,17 @@ class BlockBuilder(Transformer):
         notes: list[str] = []
         for cond in conditions:
             words: list[Token] = []
+            cond_solvent = False
             for tok in cond:
                 kind = tok.type
                 if kind == "FREQ":
                     freq = number(tok.value[: tok.value.index("M")].strip())
                     freq_span = ctx.span(tok.start_pos, tok.end_pos)
                 elif kind == "SOLVENT":
+                    cond_solvent = True
                     solvent = tok.value.strip()
                     solvent_span = ctx.span(tok.start_pos, tok.end_pos)
-                elif kind == "RATIO" and solvent:
+                elif kind == "RATIO" and cond_solvent:
                     solvent = f"{solvent} {tok.value.strip()}"
                     solvent_span = ctx.span(solvent_span.start - ctx.base, tok.end_pos) if ctx.repaired.offsets is None else solvent_span
                 elif kind == "TEMP":

@@ -77,8 +77,6 @@ def multiplicity_parts(written: str) -> tuple[str, tuple[str, ...], bool, bool, 
         broad = lowered.startswith("broad ")
         words = [w for w in re.split(r"\s+", lowered) if w in _WORD]
         base = "".join(_WORD[w] for w in words)
-        if base.startswith("s") and len(base) > 1:
-            base = base[1:]
         components = tuple(_LETTERS_RE.findall(base)) if base not in ("s", "m") else ()
         base = "".join(_LETTER.get(c, c) for c in components) if components else base
         components = tuple(_LETTER[c] for c in components)
