@@ -1,0 +1,166 @@
+"""Run the rules over a parsed document: ``check(document, config=None, formula=None)``.
+
+Findings are :class:`~peakproof.span.Diagnostic` objects, sorted by position, with the parse
+diagnostics (``syntax``, ``repair-*``) included so one report covers both.  Inline markers
+(``peakproof: ignore rule-a, PP101``) silence rules for one block; ``select``/``ignore`` and
+severity overrides come from :class:`~peakproof.config.Config`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+from .config import Config
+from .span import Diagnostic, LineIndex
+
+_SEVERITY_RANK = {"error": 0, "warning": 1, "note": 2}
+
+
+@dataclass
+class CheckResult:
+    """Findings of one document and the coupling networks the rules used."""
+
+    diagnostics: list[Diagnostic]
+    networks: list[dict[str, Any]] = field(default_factory=list)
+
+
+def at_or_above(severity: str, threshold: str) -> bool:
+    return _SEVERITY_RANK[severity] <= _SEVERITY_RANK[threshold]
+
+
+def check(document, config: Config | None = None, formula: str | None = None) -> list[Diagnostic]:
+    """Every finding for ``document`` (parse diagnostics included), in text order."""
+    return check_document(document, config, formula).diagnostics
+
+
+def check_document(document, config: Config | None = None, formula: str | None = None, *,
+                   strict: bool = False) -> CheckResult:
+    """Findings plus the coupling networks; ``strict`` lets a failing rule raise (for tests)."""
+    from .rules import Context, all_rules, resolve_names
+
+    config = config or Config()
+    if formula is not None:
+        config = config.with_overrides(formula=formula)
+    rules = _enabled_rules(all_rules(), config, resolve_names)
+    index = LineIndex(document.text)
+    findings: list[Diagnostic] = list(_filtered_parse_diagnostics(document, config, resolve_names))
+    networks: list[dict[str, Any]] = []
+    neutral_override = _override_formula(config)
+    for block in document.blocks:
+        ctx = Context(document=document, config=config, index=index)
+        ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
+        silenced = _suppressed(block, resolve_names)
+        for rule in rules:
+            if rule.scope != "block" or rule.name in silenced:
+                continue
+            findings.extend(_run(rule, rule.check, block, ctx, strict))
+        for k, spectrum in enumerate(block.spectra):
+            net = ctx.network(spectrum)
+            networks.append({"block": block.index, "spectrum": k, **net.to_json()})
+    doc_ctx = Context(document=document, config=config, index=index)
+    for rule in rules:
+        if rule.scope == "document":
+            findings.extend(
+                d for d in _run(rule, rule.check_document, document, doc_ctx, strict)
+                if rule.name not in _suppressed_at(document, d.span.start, resolve_names)
+            )
+    findings.sort(key=lambda d: (d.span.start, _SEVERITY_RANK[d.severity], d.rule))
+    return CheckResult(findings, networks)
+
+
+def _run(rule, method, target, ctx, strict: bool) -> list[Diagnostic]:
+    try:
+        return list(method(target, ctx))
+    except Exception as exc:  # a rule bug must not hide the other findings
+        if strict:
+            raise
+        span = target.span if hasattr(target, "span") else LineIndex(ctx.document.text).span(0, 0)
+        return [Diagnostic(rule="internal-error", severity="note", span=span, code="",
+                           message=f"rule {rule.name} could not run here ({type(exc).__name__}: {exc}); "
+                                   "please report this with the text that caused it")]
+
+
+def _enabled_rules(classes, config: Config, resolve_names) -> list:
+    selected = resolve_names(config.select) if config.select else {c.name for c in classes}
+    ignored = resolve_names(config.ignore) if config.ignore else set()
+    overrides: dict[str, str] = {}
+    for key, severity in config.severity.items():
+        for name in resolve_names([key]):
+            overrides[name] = severity
+    return [c(overrides.get(c.name)) for c in classes if c.name in selected and c.name not in ignored]
+
+
+def _filtered_parse_diagnostics(document, config: Config, resolve_names):
+    ignored = set()
+    for key in config.ignore:
+        try:
+            ignored |= resolve_names([key])
+        except KeyError:
+            ignored.add(key)  # "syntax" and "repair-*" are not registered rules
+    for d in document.diagnostics:
+        if d.rule not in ignored and not (d.rule.startswith("repair-") and "repair" in ignored):
+            yield d
+
+
+def _suppressed(block, resolve_names) -> set[str]:
+    names: set[str] = set()
+    for key in block.suppressed:
+        try:
+            names |= resolve_names([key])
+        except KeyError:
+            continue  # an unknown name in a marker silences nothing
+    return names
+
+
+def _suppressed_at(document, offset: int, resolve_names) -> set[str]:
+    for block in document.blocks:
+        if block.span.start <= offset < block.span.end:
+            return _suppressed(block, resolve_names)
+    return set()
+
+
+def _override_formula(config: Config):
+    if not config.formula:
+        return None
+    from .formula import parse_formula
+
+    return parse_formula(config.formula).neutral()
+
+
+def block_formula(block, override=None, index: LineIndex | None = None):
+    """(neutral Formula, where it came from, span) for a block; (None, None, None) when unknown.
+
+    Order: ``--formula``, the formula written by the compound, elemental analysis, HRMS ion
+    formula minus the adduct.
+    """
+    from .formula import FormulaError, neutral_from_ion, parse_formula
+
+    if override is not None:
+        return override, "--formula", None
+    if block.formula:
+        try:
+            span = None
+            at = block.text.find(block.formula)
+            if at >= 0 and index is not None:
+                start = block.span.start + at
+                span = index.span(start, start + len(block.formula))
+            return parse_formula(block.formula).neutral(), "compound", span
+        except FormulaError:
+            pass
+    for analysis in block.analyses:
+        if analysis.formula:
+            try:
+                return parse_formula(analysis.formula).neutral(), "elemental analysis", analysis.formula_span
+            except FormulaError:
+                continue
+    for ms in block.mass_spec:
+        if ms.formula and ms.ion:
+            try:
+                return neutral_from_ion(ms.formula, ms.ion), "HRMS", ms.formula_span
+            except FormulaError:
+                continue
+    return None, None, None
+
+
+__all__ = ["CheckResult", "at_or_above", "block_formula", "check", "check_document"]

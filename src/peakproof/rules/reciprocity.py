@@ -1,0 +1,105 @@
+"""The splitting rules: a multiplet's letters against the nuclei that carry its J (n+1, 2nI+1)."""
+
+from __future__ import annotations
+
+from ..model import PARTNERS
+from ..network import homonuclear
+from . import Rule
+from ._util import fmt, signal_label
+
+#: symbol in a coupling label → nucleus of the partner
+_PARTNER_NUCLEUS = {"D": "2H", "F": "19F", "P": "31P", "H": "1H", "C": "13C", "N": "15N", "Si": "29Si"}
+
+
+class ReciprocityCount(Rule):
+    """A q implies three equivalent partners, a t two: the signals sharing the J must hold that many."""
+
+    name = "reciprocity-count"
+    code = "PP211"
+    severity = "warning"
+    message = "{letter} with J = {j} Hz implies {needed} equivalent partner(s), but {partners}"
+    rationale = (
+        "n equivalent spin-½ partners split a signal into n+1 lines (2nI+1 for spin I: one "
+        "deuterium gives a 1:1:1 triplet). The signals that carry the same J must account for "
+        "at least that many nuclei by their integrations, and the formula must contain them."
+    )
+    source = "n+1 and 2nI+1 rules, Pascal-triangle intensities (common practice)"
+    examples = (
+        ("fail", "1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 1.25 (d, J = 7.1 Hz, 2H)."),
+        ("fail", "13C{1H} NMR (101 MHz, CDCl3) δ 29.6 (d, JC–D = 19.4 Hz)."),
+        ("pass", "1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 1.25 (t, J = 7.1 Hz, 3H)."),
+        ("pass", "13C{1H} NMR (101 MHz, CDCl3) δ 29.6 (t, JC–D = 19.4 Hz)."),
+    )
+
+    def check(self, block, ctx):
+        from ..nuclei import UnknownNucleus, nucleus
+
+        tol = ctx.config.coupling_tolerance + 1e-9
+        for spectrum in block.spectra:
+            net = ctx.network(spectrum)
+            element = spectrum.element
+            for k, signal in enumerate(spectrum.signals):
+                m = signal.multiplicity
+                if m is None or m.kind != "first-order" or m.multiplier != 1:
+                    continue
+                if len(m.components) != len(signal.couplings) or not m.components:
+                    continue
+                done: set[int] = set()
+                for ci, c in enumerate(signal.couplings):
+                    if ci in done:
+                        continue
+                    lines = PARTNERS[m.components[ci]] + 1
+                    if not homonuclear(c, element):
+                        x = next(n.lstrip("0123456789") for n in c.nuclei if n.lstrip("0123456789") != element)
+                        try:
+                            spin = float(nucleus(_PARTNER_NUCLEUS.get(x, x)).spin)
+                        except (UnknownNucleus, KeyError):
+                            continue
+                        needed = (lines - 1) / (2 * spin)
+                        if abs(needed - round(needed)) > 1e-9:
+                            yield self.finding(
+                                m.span, letter=f"'{m.components[ci]}'", j=c.text or fmt(c.value, 2),
+                                needed=fmt(needed, 2),
+                                partners=f"no whole number of {x} nuclei (I = {fmt(spin, 1)}) gives {lines} lines",
+                                data={"lines": lines, "spin": spin, "partner": x},
+                            )
+                            continue
+                        if ctx.formula is None:
+                            continue
+                        have = ctx.formula.counts.get(x, 0) if x == "D" else ctx.formula.element_count(x)
+                        if have < needed:
+                            yield self.finding(
+                                m.span, letter=f"'{m.components[ci]}'", j=c.text or fmt(c.value, 2),
+                                needed=int(needed), partners=f"the formula has {have} {x}",
+                                data={"lines": lines, "spin": spin, "partner": x, "needed": needed, "in_formula": have},
+                            )
+                        continue
+                    # equal J values on several letters add up (dt with J = 7, 7 ⇒ 3 partners)
+                    same = [cj for cj in range(ci, len(signal.couplings))
+                            if homonuclear(signal.couplings[cj], element)
+                            and abs(signal.couplings[cj].value - c.value) <= tol]
+                    done.update(same)
+                    needed = sum(PARTNERS[m.components[cj]] for cj in same)
+                    nodes = {other for cj in same for other, _ in net.partners(k, cj)}
+                    if not nodes:
+                        continue  # no partner at all: coupling-no-partner
+                    counts = [spectrum.signals[o].count for o in nodes]
+                    if any(n is None for n in counts):
+                        continue
+                    total = sum(counts)
+                    if total + 0.5 >= needed or _hidden_partners(spectrum, k):
+                        continue
+                    names = ", ".join(signal_label(spectrum.signals[o]) for o in sorted(nodes))
+                    yield self.finding(
+                        m.span, letter=f"'{m.name}'", j=c.text or fmt(c.value, 2), needed=needed,
+                        partners=f"the signals with that J ({names}) account for {fmt(total, 1)} H",
+                        data={"needed": needed, "partner_count": total, "partners": sorted(nodes)},
+                    )
+
+
+def _hidden_partners(spectrum, skip: int) -> bool:
+    return any(
+        k != skip and not s.couplings and s.multiplicity is not None
+        and s.multiplicity.kind in ("multiplet", "broad", "AB")
+        for k, s in enumerate(spectrum.signals)
+    )

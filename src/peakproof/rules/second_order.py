@@ -1,0 +1,76 @@
+"""Second-order warnings from Δν/J of coupled partners (Δν in Hz = Δδ × spectrometer MHz)."""
+
+from __future__ import annotations
+
+from . import Rule
+from ._util import fmt, signal_label
+
+
+def _first_order_pairs(spectrum, ctx):
+    net = ctx.network(spectrum)
+    seen = set()
+    for edge in net.edges:
+        if edge.ratio is None or (edge.i, edge.j) in seen:
+            continue
+        a, b = spectrum.signals[edge.i], spectrum.signals[edge.j]
+        if not all(s.multiplicity is not None and s.multiplicity.kind == "first-order"
+                   and not s.multiplicity.apparent for s in (a, b)):
+            continue
+        seen.add((edge.i, edge.j))
+        yield a, b, edge
+
+
+class _SecondOrder(Rule):
+    low = 0.0
+    high = 0.0
+
+    def check(self, block, ctx):
+        for spectrum in block.spectra:
+            if not spectrum.frequency_mhz:
+                continue
+            for a, b, edge in _first_order_pairs(spectrum, ctx):
+                if self.low <= edge.ratio < self.high:
+                    yield self.finding(
+                        a.multiplicity.span,
+                        here=signal_label(a), there=signal_label(b), j=fmt(edge.j_hz, 2),
+                        dnu=fmt(edge.delta_nu_hz, 1), ratio=fmt(edge.ratio, 1),
+                        mhz=fmt(spectrum.frequency_mhz, 1),
+                        data={"delta_nu_hz": round(edge.delta_nu_hz, 3), "j_hz": edge.j_hz,
+                              "ratio": round(edge.ratio, 3), "frequency_mhz": spectrum.frequency_mhz,
+                              "partner_shift": b.position},
+                    )
+
+
+class SecondOrderAB(_SecondOrder):
+    """Coupled partners so close that the pattern is an AB system, not two doublets."""
+
+    name = "second-order-ab"
+    code = "PP221"
+    severity = "warning"
+    low, high = 0.0, 4.0
+    message = "{here} and {there} share J = {j} Hz but are only {dnu} Hz apart at {mhz} MHz (Δν/J = {ratio} < 4); report them as an AB system or an apparent multiplet"
+    rationale = (
+        "When Δν/J is small the lines lean (roofing) and shift from first-order positions; below "
+        "about 4 the pattern should be shown as AB (with J and both shifts) or as m."
+    )
+    source = "common practice (rule of thumb)"
+    examples = (
+        ("fail", "1H NMR (400 MHz, CDCl3) δ 7.02 (d, J = 8.0 Hz, 1H), 6.98 (d, J = 8.0 Hz, 1H)."),
+        ("pass", "1H NMR (400 MHz, CDCl3) δ 7.40 (d, J = 8.0 Hz, 1H), 6.80 (d, J = 8.0 Hz, 1H)."),
+    )
+
+
+class SecondOrderApproximate(_SecondOrder):
+    """Partners with 4 ≤ Δν/J < 10: first-order analysis is only approximate."""
+
+    name = "second-order-approximate"
+    code = "PP222"
+    severity = "note"
+    low, high = 4.0, 10.0
+    message = "{here} and {there} share J = {j} Hz and are {dnu} Hz apart at {mhz} MHz (Δν/J = {ratio} < 10); first-order shifts and J values are approximate here"
+    rationale = "First-order analysis holds when Δν ≫ J; Δν/J ≳ 10 is the usual threshold."
+    source = "common practice (textbook rule of thumb)"
+    examples = (
+        ("fail", "1H NMR (400 MHz, CDCl3) δ 7.10 (d, J = 8.0 Hz, 1H), 6.95 (d, J = 8.0 Hz, 1H)."),
+        ("pass", "1H NMR (400 MHz, CDCl3) δ 7.40 (d, J = 8.0 Hz, 1H), 6.80 (d, J = 8.0 Hz, 1H)."),
+    )

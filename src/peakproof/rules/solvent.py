@@ -1,0 +1,154 @@
+"""Reported signals that are the solvent, its water, or a common impurity; referencing values."""
+
+from __future__ import annotations
+
+import functools
+import re
+
+from . import Rule
+from ._util import EXCHANGEABLE, fmt
+
+
+@functools.cache
+def _tables(solvent: str, nucleus: str):
+    from ..impurities import UnknownSolvent, accepted_references, impurity_groups, residual_peaks, water_peak
+
+    try:
+        residual = residual_peaks(solvent, nucleus)
+        refs = accepted_references(solvent, nucleus)
+        groups = impurity_groups(solvent, nucleus)
+        water = water_peak(solvent) if nucleus == "1H" else None
+    except (UnknownSolvent, KeyError, ValueError):
+        return None
+    by_compound: dict[str, list] = {}
+    for g in groups:
+        by_compound.setdefault(g.compound, []).append(g)
+    return residual, refs, water, by_compound
+
+
+def _compatible(reported, tabulated: str | None) -> bool:
+    """Reported multiplicity agrees with the table's (none written, m and br match anything)."""
+    if reported is None or tabulated is None or reported.kind in ("multiplet", "broad"):
+        return True
+    tab = tabulated.replace("br ", "").replace("br", "").strip() or "s"
+    name = reported.name.replace("br ", "").replace("app ", "")
+    return name == tab or (name == "s" and tab == "s")
+
+
+def _single_shift(signal):
+    return signal.shift is not None and signal.range is None
+
+
+class SolventCoincidence(Rule):
+    """A listed signal at the residual solvent, water or a common impurity's shift."""
+
+    name = "solvent-coincidence"
+    code = "PP501"
+    severity = "warning"
+    message = "δ {shift} coincides with {what} ({table} in {solvent}); it is likely not a signal of the compound"
+    rationale = (
+        "Residual protio solvent, dissolved water and common laboratory solvents appear at "
+        "tabulated shifts; a reported peak there is likely one of them. Impurities with several "
+        "groups are reported only when all their groups are listed; single-group ones (acetone, "
+        "dichloromethane…) when a singlet falls within 0.01 ppm."
+    )
+    source = "Gottlieb, Kotlyar, Nudelman, J. Org. Chem. 1997, 62, 7512; Fulmer et al., Organometallics 2010, 29, 2176"
+    examples = (
+        ("fail", "1H NMR (400 MHz, CDCl3) δ 3.81 (s, 3H), 1.56 (s, 2H)."),
+        ("fail", "1H NMR (400 MHz, CDCl3) δ 5.30 (s, 2H), 3.81 (s, 3H)."),
+        ("fail", "13C{1H} NMR (101 MHz, CDCl3) δ 171.1, 77.2, 55.3."),
+        ("pass", "1H NMR (400 MHz, CDCl3) δ 3.81 (s, 3H), 1.62 (s, 2H)."),
+        ("pass", "1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 1.26 (t, J = 7.1 Hz, 3H)."),
+    )
+
+    def check(self, block, ctx):
+        for spectrum in block.spectra:
+            if not spectrum.solvent_normalized or spectrum.nucleus not in ("1H", "13C"):
+                continue
+            tables = _tables(spectrum.solvent_normalized, spectrum.nucleus)
+            if tables is None:
+                continue
+            residual, refs, water, by_compound = tables
+            tol = ctx.config.solvent_tolerance_1h if spectrum.nucleus == "1H" else ctx.config.solvent_tolerance_13c
+            flagged: set[int] = set()
+            for k, s in enumerate(spectrum.signals):
+                if not _single_shift(s):
+                    continue
+                hit = None
+                for peak in (*residual, *refs):
+                    if abs(s.shift - peak.shift) <= tol + 1e-9 and _compatible(s.multiplicity, peak.multiplicity):
+                        hit = ("the residual solvent signal", f"{peak.label} {fmt(peak.shift, 2)}", peak.shift)
+                        break
+                if hit is None and water is not None and abs(s.shift - water.shift) <= max(tol, 0.05) + 1e-9:
+                    if _compatible(s.multiplicity, "s") and not (s.assignment and EXCHANGEABLE.search(s.assignment)):
+                        hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
+                if hit is None and spectrum.nucleus == "1H":
+                    for compound, groups in by_compound.items():
+                        if len(groups) == 1 and abs(s.shift - groups[0].shift) <= 0.01 + 1e-9 and \
+                                s.multiplicity is not None and s.multiplicity.name == "s" == groups[0].multiplicity:
+                            hit = (compound, f"{compound} {fmt(groups[0].shift, 2)}", groups[0].shift)
+                            break
+                if hit is not None:
+                    flagged.add(k)
+                    yield self._hit(s, hit[0], hit[1], hit[2], spectrum.solvent_normalized)
+            # several-group impurities: every group listed (within tolerance, compatible letters)
+            for compound, groups in by_compound.items():
+                if len(groups) < 2:
+                    continue
+                matched = []
+                for g in groups:
+                    k = next((k for k, s in enumerate(spectrum.signals) if _single_shift(s) and k not in flagged
+                              and abs(s.shift - g.shift) <= tol + 1e-9 and _compatible(s.multiplicity, g.multiplicity)), None)
+                    if k is None:
+                        break
+                    matched.append((k, g))
+                else:
+                    for k, g in matched:
+                        flagged.add(k)
+                        s = spectrum.signals[k]
+                        yield self._hit(s, compound, f"{compound} {g.group} {fmt(g.shift, 2)}", g.shift,
+                                        spectrum.solvent_normalized)
+
+    def _hit(self, s, what, table, shift, solvent):
+        return self.finding(s.shift_span or s.span, shift=s.shift_text, what=what, table=table, solvent=solvent,
+                            data={"shift": s.shift, "tabulated": shift, "matched": what, "solvent": solvent})
+
+
+_REF_NUMBER = re.compile(r"[-−]?\d+(?:\.\d+)?")
+
+
+class ReferenceInconsistent(Rule):
+    """One document referencing the same solvent and nucleus to different values."""
+
+    name = "reference-inconsistent"
+    code = "PP502"
+    severity = "note"
+    scope = "document"
+    message = "{solvent} {nucleus} is referenced to {value} here but to {first} earlier in the document; one referencing value is expected throughout"
+    rationale = (
+        "Within one report each solvent should be referenced the same way (e.g. CDCl3 at 7.26 / "
+        "77.16, or the older 77.0); mixed values shift one compound against another."
+    )
+    source = "Harris et al., Pure Appl. Chem. 2008, 80, 59 (IUPAC referencing); Fulmer et al., Organometallics 2010, 29, 2176"
+    examples = (
+        ("fail", "13C NMR (101 MHz, CDCl3, ref 77.16) δ 171.1, 55.3.\n\n13C NMR (101 MHz, CDCl3, ref 77.0) δ 170.8, 55.1."),
+        ("pass", "13C NMR (101 MHz, CDCl3, ref 77.16) δ 171.1, 55.3.\n\n13C NMR (101 MHz, CDCl3, ref 77.16) δ 170.8, 55.1."),
+    )
+
+    def check_document(self, document, ctx):
+        first: dict[tuple[str, str], float] = {}
+        for block in document.blocks:
+            for s in block.spectra:
+                if not s.reference or not s.solvent_normalized:
+                    continue
+                m = _REF_NUMBER.search(s.reference)
+                if m is None:
+                    continue
+                value = float(m.group(0).replace("−", "-"))
+                key = (s.solvent_normalized, s.nucleus)
+                if key not in first:
+                    first[key] = value
+                elif abs(first[key] - value) > 1e-6:
+                    yield self.finding(s.header_span or s.span, solvent=key[0], nucleus=key[1], value=fmt(value, 3),
+                                       first=fmt(first[key], 3),
+                                       data={"value": value, "first_value": first[key]})
