@@ -23,3 +23,34 @@ def diagnostic_lines(source, diagnostics, *, show_source: bool = True):
                 yield "    expected: " + "; ".join(d.expected[:6])
             if d.hint:
                 yield f"    hint: {d.hint}"
+
+
+def finding_lines(source, diagnostics, *, show_source: bool = True):
+    """Like :func:`diagnostic_lines`, plus each finding's suggested fix when it has one."""
+    diagnostics = list(diagnostics)
+    lines = diagnostic_lines(source, diagnostics, show_source=show_source)
+    if not show_source:
+        yield from lines
+        return
+    per = iter(diagnostics)
+    current = None
+    for line in lines:
+        if not line.startswith("    "):
+            if current is not None and current.suggestion:
+                yield f"    suggestion: {current.suggestion.get('description', '')}"
+            current = next(per)
+        yield line
+    if current is not None and current.suggestion:
+        yield f"    suggestion: {current.suggestion.get('description', '')}"
+
+
+def summary_line(counts: dict[str, int], files: int) -> str:
+    parts = [f"{counts.get(s, 0)} {s}{'s' if counts.get(s, 0) != 1 else ''}" for s in ("error", "warning", "note")]
+    return f"{files} file(s) checked: " + ", ".join(parts)
+
+
+def apply_suggestion(text: str, suggestion: dict) -> str:
+    """``text`` with one suggestion's replacements applied (right to left, offsets unchanged)."""
+    for edit in sorted(suggestion.get("replace", ()), key=lambda e: (e["start"], e["end"]), reverse=True):
+        text = text[: edit["start"]] + edit["text"] + text[edit["end"] :]
+    return text

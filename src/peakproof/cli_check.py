@@ -1,0 +1,177 @@
+"""``peakproof check FILE…``, ``peakproof rules`` and ``peakproof explain NAME|CODE``."""
+
+from __future__ import annotations
+
+import json
+import sys
+
+from .cli import EXIT_FINDINGS, EXIT_OK, EXIT_USAGE
+
+
+def add_arguments(name, parser) -> None:
+    if name == "rules":
+        parser.add_argument("--format", choices=("text", "json"), default="text", help="output format")
+        return
+    if name == "explain":
+        parser.add_argument("rule", metavar="NAME|CODE", help="a rule name (e.g. multiplicity-j-count) or code (PP101)")
+        return
+    parser.add_argument("files", nargs="+", metavar="FILE", help="a .txt/.md/.tex/.docx/.pdf file, or - for stdin")
+    parser.add_argument("--format", choices=("text", "json", "sarif"), default="text", help="output format")
+    parser.add_argument("--fail-on", choices=("error", "warning", "note"), default=None,
+                        help="lowest severity that makes the exit status 1 (default: error)")
+    parser.add_argument("--select", action="append", default=None, metavar="RULES",
+                        help="only these rules (names, codes or families, comma-separated)")
+    parser.add_argument("--ignore", action="append", default=None, metavar="RULES",
+                        help="skip these rules (names, codes or families, comma-separated)")
+    parser.add_argument("--formula", default=None, help="the compound's molecular formula, e.g. C12H14O3")
+    parser.add_argument("--config", default=None, metavar="FILE",
+                        help="settings file (default: [tool.peakproof] of the nearest pyproject.toml)")
+    parser.add_argument("--coupling-tolerance", type=float, default=None, metavar="HZ",
+                        help="J values within this many Hz count as one coupling (default 0.3)")
+    parser.add_argument("--hrms-ppm", type=float, default=None, metavar="PPM",
+                        help="HRMS found vs calcd tolerance in ppm (default 5)")
+    parser.add_argument("--hrms-mz", type=float, default=None, metavar="MZ",
+                        help="HRMS tolerance in m/z units instead of ppm (e.g. 0.003)")
+    parser.add_argument("--ea-tolerance", type=float, default=None, metavar="PERCENT",
+                        help="elemental analysis found vs calcd, absolute %% (default 0.4)")
+    parser.add_argument("--input-format", choices=("txt", "md", "tex", "docx", "pdf"), default=None,
+                        help="read the files as this format, whatever their extension")
+    parser.add_argument("--quiet", action="store_true", help="text output without excerpts")
+
+
+def run(args) -> int:
+    if args.command == "rules":
+        return _list_rules(args)
+    if args.command == "explain":
+        return _explain(args)
+    return _check(args)
+
+
+def _list_rules(args) -> int:
+    from .rules import all_rules
+
+    rules = all_rules()
+    if args.format == "json":
+        payload = [{"name": r.name, "code": r.code, "severity": r.severity, "family": r.family,
+                    "message": r.message, "rationale": r.rationale, "source": r.source} for r in rules]
+        json.dump(payload, sys.stdout, ensure_ascii=False, indent=1)
+        sys.stdout.write("\n")
+        return EXIT_OK
+    width = max(len(r.name) for r in rules)
+    family = None
+    for r in rules:
+        if r.family != family:
+            family = r.family
+            print(f"{family.replace('_', ' ')}:")
+        doc = " ".join((r.__doc__ or r.message).split())
+        print(f"  {r.code}  {r.name:<{width}}  {r.severity:<7}  {doc}")
+    return EXIT_OK
+
+
+def _explain(args) -> int:
+    from .rules import rule_for
+
+    try:
+        rule = rule_for(args.rule)
+    except KeyError as exc:
+        print(f"peakproof: {exc.args[0]}", file=sys.stderr)
+        return EXIT_USAGE
+    print(rule.documentation())
+    return EXIT_OK
+
+
+def _split(values) -> tuple[str, ...]:
+    return tuple(p.strip() for v in values or () for p in v.split(",") if p.strip())
+
+
+def _settings(args, first_file: str):
+    from .config import ConfigError, load_config
+    from .formula import FormulaError, parse_formula
+
+    near = first_file if first_file != "-" else "."
+    config = load_config(args.config, near=near if args.config is None else None)
+    overrides = {
+        "fail_on": args.fail_on,
+        "coupling_tolerance": args.coupling_tolerance,
+        "hrms_ppm": args.hrms_ppm,
+        "hrms_mz": args.hrms_mz,
+        "ea_tolerance": args.ea_tolerance,
+        "formula": args.formula,
+    }
+    if args.select:
+        overrides["select"] = _split(args.select)
+    if args.ignore:
+        overrides["ignore"] = config.ignore + _split(args.ignore)
+    config = config.with_overrides(**overrides)
+    for key in ("coupling_tolerance", "hrms_ppm", "hrms_mz", "ea_tolerance"):
+        value = getattr(config, key)
+        if value is not None and value < 0:
+            raise ConfigError(f"--{key.replace('_', '-')} must not be negative")
+    if config.formula:
+        try:
+            parse_formula(config.formula)
+        except FormulaError as exc:
+            raise ConfigError(f"--formula {config.formula!r}: {exc}") from None
+    from .rules import resolve_names
+
+    for key in ("select", "ignore"):
+        for name in getattr(config, key):
+            if key == "ignore" and (name == "syntax" or name.startswith("repair")):
+                continue  # parse diagnostics, not registered rules
+            try:
+                resolve_names([name])
+            except KeyError as exc:
+                raise ConfigError(f"--{key}: {exc.args[0]}") from None
+    return config
+
+
+def _check(args) -> int:
+    from . import __version__
+    from .api import InputError, parse_path
+    from .checker import at_or_above, check_document
+    from .config import ConfigError
+    from .report import finding_lines, summary_line
+
+    try:
+        config = _settings(args, args.files[0])
+    except ConfigError as exc:
+        print(f"peakproof: {exc}", file=sys.stderr)
+        return EXIT_USAGE
+    for problem in config.problems:
+        print(f"peakproof: {problem}", file=sys.stderr)
+    status = EXIT_OK
+    reports = []
+    documents = []
+    counts = {"error": 0, "warning": 0, "note": 0}
+    for path in args.files:
+        try:
+            source, doc = parse_path(path, fmt=args.input_format)
+        except InputError as exc:
+            print(f"peakproof: {exc}", file=sys.stderr)
+            status = EXIT_USAGE
+            continue
+        result = check_document(doc, config)
+        reports.append((source, result.diagnostics))
+        for d in result.diagnostics:
+            counts[d.severity] += 1
+            if at_or_above(d.severity, config.fail_on) and status == EXIT_OK:
+                status = EXIT_FINDINGS
+        if args.format == "json":
+            documents.append({"path": source.name, "findings": [d.to_json() for d in result.diagnostics],
+                              "networks": result.networks})
+        elif args.format == "text":
+            for line in finding_lines(source, result.diagnostics, show_source=not args.quiet):
+                print(line)
+    if args.format == "json":
+        payload = {"schema": "peakproof-check/1", "version": __version__, "fail_on": config.fail_on,
+                   "summary": counts, "documents": documents}
+        json.dump(payload, sys.stdout, ensure_ascii=False, indent=1)
+        sys.stdout.write("\n")
+    elif args.format == "sarif":
+        from .sarif import to_sarif
+
+        json.dump(to_sarif(reports, version=__version__), sys.stdout, ensure_ascii=False, indent=1)
+        sys.stdout.write("\n")
+    elif reports:
+        print(summary_line(counts, len(reports)))
+    return status
