@@ -50,6 +50,7 @@ def check_document(document, config: Config | None = None, formula: str | None =
     for block in document.blocks:
         ctx = Context(document=document, config=config, index=index)
         ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
+        ctx.independent_formula = block_formula(block, neutral_override, index, independent=True)[0]
         silenced = _suppressed(block, resolve_names)
         for rule in rules:
             if rule.scope != "block" or rule.name in silenced:
@@ -128,16 +129,29 @@ def _override_formula(config: Config):
     return parse_formula(config.formula).neutral()
 
 
-def block_formula(block, override=None, index: LineIndex | None = None):
+def block_formula(block, override=None, index: LineIndex | None = None, *, independent: bool = False):
     """(neutral Formula, where it came from, span) for a block; (None, None, None) when unknown.
 
-    Order: ``--formula``, the formula written by the compound, elemental analysis, HRMS ion
-    formula minus the adduct.
+    Order: ``--formula``, the HRMS ion formula minus the adduct, the elemental-analysis formula,
+    the formula written by the compound.  ``independent`` skips HRMS (to judge the HRMS formula).
     """
     from .formula import FormulaError, neutral_from_ion, parse_formula
 
     if override is not None:
         return override, "--formula", None
+    if not independent:
+        for ms in block.mass_spec:
+            if ms.formula and ms.ion:
+                try:
+                    return neutral_from_ion(ms.formula, ms.ion), "HRMS", ms.formula_span
+                except FormulaError:
+                    continue
+    for analysis in block.analyses:
+        if analysis.formula:
+            try:
+                return parse_formula(analysis.formula).neutral(), "elemental analysis", analysis.formula_span
+            except FormulaError:
+                continue
     if block.formula:
         try:
             span = None
@@ -148,18 +162,6 @@ def block_formula(block, override=None, index: LineIndex | None = None):
             return parse_formula(block.formula).neutral(), "compound", span
         except FormulaError:
             pass
-    for analysis in block.analyses:
-        if analysis.formula:
-            try:
-                return parse_formula(analysis.formula).neutral(), "elemental analysis", analysis.formula_span
-            except FormulaError:
-                continue
-    for ms in block.mass_spec:
-        if ms.formula and ms.ion:
-            try:
-                return neutral_from_ion(ms.formula, ms.ion), "HRMS", ms.formula_span
-            except FormulaError:
-                continue
     return None, None, None
 
 

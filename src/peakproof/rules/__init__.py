@@ -149,6 +149,7 @@ class Context:
     formula: Any = None  # peakproof.formula.Formula of the neutral compound, or None
     formula_source: str | None = None
     formula_span: Span | None = None
+    independent_formula: Any = None  # the formula from a source other than HRMS, for judging HRMS
     index: Any = None  # LineIndex of the document
     _networks: dict[int, Any] = field(default_factory=dict)
 

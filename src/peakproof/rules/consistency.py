@@ -29,7 +29,8 @@ class FormulaMismatch(Rule):
         if reference is None:
             return
         candidates = []
-        if block.formula and ctx.formula_source != "compound":
+        if block.formula and ctx.formula_source != "compound" and not any(
+                a.formula == block.formula for a in block.analyses):
             try:
                 at = block.text.find(block.formula)
                 span = ctx.span(block.span.start + at, block.span.start + at + len(block.formula)) if at >= 0 else block.span

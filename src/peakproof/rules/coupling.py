@@ -29,6 +29,16 @@ def _hetero_match(block, spectrum, value: float, tol: float) -> bool:
     return False
 
 
+def _hetero_unlisted(block, ctx) -> bool:
+    """F or P in the compound while no 19F/31P list gives J values: an H–X partner is expected."""
+    for element, nucleus in (("F", "19F"), ("P", "31P")):
+        if has_element(ctx.formula, element) and not any(
+            s.couplings for sp in block.spectra if sp.nucleus == nucleus for s in sp.signals
+        ):
+            return True
+    return False
+
+
 def _unmatched_homonuclear(block, ctx):
     """(spectrum, index, signal, coupling index) for 1H J values with no partner in the network."""
     for spectrum in block.spectra:
@@ -88,8 +98,12 @@ class CouplingNearMiss(Rule):
             reported.add(pair)
             other = spectrum.signals[m]
             oc = other.couplings[cj]
+            # pair findings point at the later-listed member, naming the earlier one
+            where = number_edit_span(ctx, c if k > m else oc)
+            if k < m:
+                signal, other, c, oc = other, signal, oc, c
             yield self.finding(
-                number_edit_span(ctx, c),
+                where,
                 j=c.text or fmt(c.value, 2),
                 here=signal_label(signal),
                 other_j=oc.text or fmt(oc.value, 2),
@@ -125,7 +139,11 @@ class CouplingNoPartner(Rule):
             best = _nearest(spectrum, k, c.value)
             if best is not None and best[0] <= near + 1e-9:
                 continue  # a near miss, reported by coupling-near-miss
+            if signal.multiplicity is not None and signal.multiplicity.kind == "singlet":
+                continue  # singlet-with-j reports it
             if _hetero_match(block, spectrum, c.value, tol) or _unreported_partner_possible(spectrum, k):
+                continue
+            if _hetero_unlisted(block, ctx):
                 continue
             yield self.finding(
                 number_edit_span(ctx, c),

@@ -60,9 +60,8 @@ class _Integration(Rule):
             )
 
 
-# ethyl propanoate, C5H10O2
-_ESTER = ("1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 2.32 (q, J = 7.6 Hz, 2H), "
-          "1.25 (t, J = 7.1 Hz, 3H), 1.14 (t, J = 7.6 Hz, {n}H).")
+# methyl propanoate, C4H8O2
+_ESTER = "1H NMR (400 MHz, CDCl3) δ 3.67 (s, {n}H), 2.32 (q, J = 7.6 Hz, 2H), 1.14 (t, J = 7.6 Hz, 3H)."
 
 
 class IntegrationHydrogen(_Integration):
@@ -79,8 +78,8 @@ class IntegrationHydrogen(_Integration):
     )
     source = "common practice"
     examples = (
-        ("fail", _ESTER.format(n=5), "C5H10O2"),
-        ("pass", _ESTER.format(n=3), "C5H10O2"),
+        ("fail", _ESTER.format(n=5), "C4H8O2"),
+        ("pass", _ESTER.format(n=3), "C4H8O2"),
         ("fail", "1H NMR (400 MHz, CDCl3) δ 7.90 (d, J = 8.8 Hz, 2H), 6.88 (d, J = 8.8 Hz, 2H).", "C7H6O3"),
     )
 

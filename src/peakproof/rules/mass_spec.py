@@ -34,7 +34,7 @@ def intended_ion(ms, ctx):
     problem = None
     intended = written
     if ion is not None:
-        independent = ctx.formula if ctx.formula_source not in (None, "HRMS") else None
+        independent = ctx.independent_formula
         try:
             neutral_from_ion(written, ion)
         except FormulaError as exc:

@@ -87,14 +87,33 @@ class ReciprocityCount(Rule):
                     if any(n is None for n in counts):
                         continue
                     total = sum(counts)
-                    if total + 0.5 >= needed or _hidden_partners(spectrum, k):
+                    # n equivalent partners: some of the signals carrying this J must hold exactly
+                    # n nuclei. A d is exempt: symmetric AA'XX' pairs (2H beside 2H) are written d.
+                    if needed < 2 or _subset_sums_to(counts, needed) or _hidden_partners(spectrum, k):
                         continue
+                    if _in_other_list(block, spectrum, c.value, tol):
+                        continue  # part of the splitting is likely from 19F or 31P
                     names = ", ".join(signal_label(spectrum.signals[o]) for o in sorted(nodes))
                     yield self.finding(
                         m.span, letter=f"'{m.name}'", j=c.text or fmt(c.value, 2), needed=needed,
-                        partners=f"the signals with that J ({names}) account for {fmt(total, 1)} H",
+                        partners=f"no combination of the signals with that J ({names}; {fmt(total, 1)} H in all) holds {needed} H",
                         data={"needed": needed, "partner_count": total, "partners": sorted(nodes)},
                     )
+
+
+def _subset_sums_to(counts, target: float) -> bool:
+    sums = {0.0}
+    for n in counts:
+        sums |= {s + n for s in sums}
+    return any(abs(s - target) < 0.01 for s in sums)
+
+
+def _in_other_list(block, spectrum, value: float, tol: float) -> bool:
+    return any(
+        abs(c.value - value) <= tol
+        for other in block.spectra if other.element != spectrum.element
+        for s in other.signals for c in s.couplings
+    )
 
 
 def _hidden_partners(spectrum, skip: int) -> bool:

@@ -31,7 +31,7 @@ class _SecondOrder(Rule):
             for a, b, edge in _first_order_pairs(spectrum, ctx):
                 if self.low <= edge.ratio < self.high:
                     yield self.finding(
-                        a.multiplicity.span,
+                        b.multiplicity.span,  # pair findings point at the later-listed member
                         here=signal_label(a), there=signal_label(b), j=fmt(edge.j_hz, 2),
                         dnu=fmt(edge.delta_nu_hz, 1), ratio=fmt(edge.ratio, 1),
                         mhz=fmt(spectrum.frequency_mhz, 1),

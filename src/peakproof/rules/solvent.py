@@ -79,8 +79,11 @@ class SolventCoincidence(Rule):
                     if abs(s.shift - peak.shift) <= tol + 1e-9 and _compatible(s.multiplicity, peak.multiplicity):
                         hit = ("the residual solvent signal", f"{peak.label} {fmt(peak.shift, 2)}", peak.shift)
                         break
-                if hit is None and water is not None and abs(s.shift - water.shift) <= max(tol, 0.05) + 1e-9:
-                    if _compatible(s.multiplicity, "s") and not (s.assignment and EXCHANGEABLE.search(s.assignment)):
+                # an OH/NH assigned near water gets the benefit of the doubt unless it sits on it
+                exchangeable = bool(s.assignment and EXCHANGEABLE.search(s.assignment))
+                window = tol if exchangeable else max(tol, 0.05)
+                if hit is None and water is not None and abs(s.shift - water.shift) <= window + 1e-9:
+                    if _compatible(s.multiplicity, "s"):
                         hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
                 if hit is None and spectrum.nucleus == "1H":
                     for compound, groups in by_compound.items():
