@@ -84,7 +84,12 @@ def _run(rule, method, target, ctx, strict: bool) -> list[Diagnostic]:
 
 def _enabled_rules(classes, config: Config, resolve_names) -> list:
     selected = resolve_names(config.select) if config.select else {c.name for c in classes}
-    ignored = resolve_names(config.ignore) if config.ignore else set()
+    ignored: set[str] = set()
+    for key in config.ignore:
+        try:
+            ignored |= resolve_names([key])
+        except KeyError:
+            continue  # "syntax", "repair-*": parse diagnostics, filtered separately
     overrides: dict[str, str] = {}
     for key, severity in config.severity.items():
         for name in resolve_names([key]):
