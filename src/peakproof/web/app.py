@@ -1,0 +1,408 @@
+"""The local web page's server: a thin JSON face over :mod:`peakproof.api`, like the CLI.
+
+Every answer is computed here by the same modules the command line uses; the page's script
+only displays it.  Uploads stay in memory (never a temporary file), requests carry text or
+bytes but never a path, and every error is a JSON ``{"error": message}`` a person can act on.
+"""
+
+from __future__ import annotations
+
+import difflib
+import io
+import functools
+import os
+import re
+import threading
+from typing import Any
+
+from flask import Flask, Request, jsonify, request, send_from_directory
+from werkzeug.exceptions import HTTPException, RequestEntityTooLarge
+
+DEFAULT_MAX_MB = 20
+_HERE = os.path.dirname(os.path.abspath(__file__))
+_STATIC = os.path.join(_HERE, "static")
+_UPLOAD_FORMATS = {
+    ".txt": "txt", ".text": "txt", ".md": "md", ".markdown": "md", ".tex": "tex",
+    ".latex": "tex", ".docx": "docx", ".pdf": "pdf",
+}  # fmt: skip
+#: findings without a registered rule: the parser's own reports
+_PARSER_RATIONALE = {
+    "syntax": "The text could not be read as peak data here, so nothing after this point in "
+    "the item was checked. Fix the spelling shown and check again.",
+    "repair": "The reader accepted a common slip and read the data as shown; the formatter "
+    "writes the repaired form.",
+    "internal-error": "A rule failed on this text; the other findings are still complete.",
+}
+
+
+#: The parser keeps state between calls, so two requests must not parse at once: the server
+#: is threaded for the page's files, but engine work takes turns.
+_ENGINE_LOCK = threading.Lock()
+
+
+def _one_at_a_time(function):
+    @functools.wraps(function)
+    def locked(*args, **kwargs):
+        with _ENGINE_LOCK:
+            return function(*args, **kwargs)
+
+    return locked
+
+
+class InMemoryRequest(Request):
+    """A request whose uploaded files are always kept in memory, never spooled to disk."""
+
+    def _get_file_stream(self, total_content_length, content_type, filename=None,
+                         content_length=None):  # fmt: skip
+        return io.BytesIO()
+
+
+class BadInput(Exception):
+    """A request the page can explain: answered 400 with ``str()`` as the message."""
+
+
+def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
+    """The Flask application; requests above ``max_request_mb`` megabytes get a 413."""
+    app = Flask(__name__, static_folder=None)
+    app.request_class = InMemoryRequest
+    app.config["MAX_CONTENT_LENGTH"] = int(max_request_mb * 1024 * 1024)
+    app.config["MAX_FORM_MEMORY_SIZE"] = int(max_request_mb * 1024 * 1024)
+    app.json.ensure_ascii = False
+    app.json.sort_keys = False
+
+    @app.get("/")
+    def index():
+        return _static_file("index.html")
+
+    @app.get("/favicon.ico")
+    def favicon():
+        return "", 204
+
+    @app.get("/static/<name>")
+    def static_asset(name: str):
+        if name not in ("app.js", "style.css"):
+            return _error(404, "no such file")
+        return _static_file(name)
+
+    @app.get("/api/styles")
+    def styles():
+        from ..styles import BUILTIN, DEFAULT
+
+        return jsonify({
+            "default": DEFAULT,
+            "styles": [{"name": n, "description": s.description} for n, s in BUILTIN.items()],
+        })  # fmt: skip
+
+    @app.post("/api/check")
+    def check_endpoint():
+        body = _json_body()
+        text = _text_field(body)
+        return jsonify(analyse(text))
+
+    @app.post("/api/format")
+    def format_endpoint():
+        body = _json_body()
+        text = _text_field(body)
+        style_name = body.get("style")
+        if style_name is not None and not isinstance(style_name, str):
+            raise BadInput("'style' must be a style name such as \"letters-first\"")
+        return jsonify(format_text(text, style_name, bool(body.get("round", False))))
+
+    @app.post("/api/plot")
+    def plot_endpoint():
+        body = _json_body()
+        text = _text_field(body)
+        block = body.get("block", 0)
+        if not isinstance(block, int) or isinstance(block, bool) or block < 0:
+            raise BadInput("'block' must be the number of a compound (0, 1, 2, …)")
+        png = plot_png(text, block)
+        return app.response_class(png, mimetype="image/png",
+                                  headers={"Cache-Control": "no-store"})  # fmt: skip
+
+    @app.post("/api/upload")
+    def upload_endpoint():
+        if "file" not in request.files:
+            raise BadInput("no file in the upload: send the document as the form field 'file'")
+        upload = request.files["file"]
+        return jsonify(read_upload(upload.filename or "", upload.read()))
+
+    @app.after_request
+    def security_headers(response):
+        # The page needs nothing from elsewhere: no inline scripts, no other origins.
+        response.headers["Content-Security-Policy"] = (
+            "default-src 'self'; img-src 'self' blob: data:; style-src 'self'; "
+            "script-src 'self'; object-src 'none'; base-uri 'none'; frame-ancestors 'none'"
+        )
+        response.headers["X-Content-Type-Options"] = "nosniff"
+        response.headers["Referrer-Policy"] = "no-referrer"
+        return response
+
+    @app.errorhandler(BadInput)
+    def bad_input(exc):
+        return _error(400, str(exc))
+
+    @app.errorhandler(RequestEntityTooLarge)
+    def too_large(exc):
+        return _error(413, f"the request is larger than the {max_request_mb:g} MB limit; "
+                      "split the document, or restart with 'peakproof serve --max-mb N'")  # fmt: skip
+
+    @app.errorhandler(HTTPException)
+    def http_error(exc):
+        return _error(exc.code or 500, exc.description or exc.name)
+
+    return app
+
+
+def _static_file(name: str):
+    response = send_from_directory(_STATIC, name, max_age=0)
+    return response
+
+
+def _error(status: int, message: str):
+    response = jsonify({"error": message})
+    response.status_code = status
+    return response
+
+
+def _json_body() -> dict[str, Any]:
+    if not request.is_json:
+        raise BadInput("send JSON (Content-Type: application/json), e.g. {\"text\": \"1H NMR …\"}")
+    body = request.get_json(silent=True)
+    if body is None:
+        raise BadInput("the request is not valid JSON")
+    if not isinstance(body, dict):
+        raise BadInput("the request must be a JSON object such as {\"text\": \"1H NMR …\"}")
+    return body
+
+
+def _text_field(body: dict[str, Any]) -> str:
+    text = body.get("text")
+    if not isinstance(text, str):
+        raise BadInput("'text' is missing: paste the characterization data as a string")
+    return text
+
+
+# ---- the engine, shaped for the page ----------------------------------------------------
+@_one_at_a_time
+def analyse(text: str) -> dict[str, Any]:
+    """Findings, the text cut at every finding boundary, per-rule counts and the compounds."""
+    from ..api import Source, parse_source
+    from ..checker import check
+
+    doc = parse_source(Source(text=text, name="pasted text", format="txt"))
+    findings = [_finding_json(i, d) for i, d in enumerate(check(doc))]
+    for f in findings:
+        f["block"] = _block_at(doc, f["span"]["start"])
+    return {
+        "text": text,
+        "findings": findings,
+        "segments": segments(text, findings),
+        "counts": rule_counts(findings),
+        "compounds": [_compound_json(b) for b in doc.blocks],
+        "totals": {s: sum(f["severity"] == s for f in findings) for s in ("error", "warning", "note")},
+    }
+
+
+def _finding_json(index: int, diagnostic) -> dict[str, Any]:
+    out = diagnostic.to_json()
+    out["id"] = index
+    rationale, source = _rationale(diagnostic.rule)
+    out["rationale"] = rationale
+    out["source"] = source
+    return out
+
+
+def _block_at(doc, offset: int) -> int | None:
+    for block in doc.blocks:
+        if block.span.start <= offset < max(block.span.end, block.span.start + 1):
+            return block.index
+    return None
+
+
+def _rationale(rule_name: str) -> tuple[str, str]:
+    from ..rules import REGISTRY, all_rules
+
+    all_rules()
+    rule = REGISTRY.get(rule_name)
+    if rule is not None:
+        return rule.rationale, rule.source
+    key = "repair" if rule_name.startswith("repair-") else rule_name
+    return _PARSER_RATIONALE.get(key, ""), ""
+
+
+def segments(text: str, findings: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """``text`` cut into pieces, each with the ids of the findings covering it.
+
+    The page builds its view from these pieces as text nodes, so it never does offset
+    arithmetic (Python counts code points, JavaScript UTF-16 units).  A finding with an empty
+    span becomes an empty piece marked ``point``.
+    """
+    n = len(text)
+    ranges = [(min(max(f["span"]["start"], 0), n), min(max(f["span"]["end"], 0), n), f["id"])
+              for f in findings]  # fmt: skip
+    cuts = sorted({0, n, *(s for s, _, _ in ranges), *(e for _, e, _ in ranges)})
+    points: dict[int, list[int]] = {}
+    for start, end, ident in ranges:
+        if end <= start:
+            points.setdefault(start, []).append(ident)
+    out: list[dict[str, Any]] = []
+    for a, b in zip(cuts, cuts[1:] + [None]):
+        if a in points:
+            out.append({"text": "", "ids": points[a], "point": True})
+        if b is None:
+            break
+        ids = [ident for start, end, ident in ranges if start <= a and b <= end and start < end]
+        out.append({"text": text[a:b], "ids": ids})
+    return [s for s in out if s["text"] or s.get("point")]
+
+
+def rule_counts(findings: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """One row per rule: name, code, severity (the worst seen) and how many findings."""
+    rank = {"error": 0, "warning": 1, "note": 2}
+    rows: dict[str, dict[str, Any]] = {}
+    for f in findings:
+        row = rows.setdefault(f["rule"], {"rule": f["rule"], "code": f["code"],
+                                          "severity": f["severity"], "count": 0})  # fmt: skip
+        row["count"] += 1
+        if rank[f["severity"]] < rank[row["severity"]]:
+            row["severity"] = f["severity"]
+    return sorted(rows.values(), key=lambda r: (rank[r["severity"]], -r["count"], r["rule"]))
+
+
+def _compound_json(block) -> dict[str, Any]:
+    label = block.compound or f"block {block.index + 1}"
+    return {
+        "block": block.index,
+        "label": label,
+        "line": block.span.line,
+        "start": block.span.start,
+        "nuclei": [s.nucleus for s in block.spectra],
+        "has_1h": any(s.nucleus == "1H" and s.signals for s in block.spectra),
+    }
+
+
+@_one_at_a_time
+def format_text(text: str, style_name: str | None, round_numbers: bool = False) -> dict[str, Any]:
+    """The text in ``style_name`` (checked by :func:`peakproof.safety.checked_format`) and a diff."""
+    from ..safety import UnsafeFormat, checked_format
+    from ..styles import DEFAULT, StyleError, get_style
+
+    try:
+        style = get_style(style_name or DEFAULT)
+    except StyleError as exc:
+        raise BadInput(str(exc)) from None
+    try:
+        result = checked_format(text, style, round_numbers=round_numbers, path="pasted text")
+    except UnsafeFormat as exc:
+        raise BadInput(f"this text could not be reformatted safely ({exc.message}); nothing was "
+                       "changed. Please report it with the text.") from None  # fmt: skip
+    return {
+        "style": style.name,
+        "text": result.text,
+        "changed": result.changed,
+        "changes": [{"kind": c.kind, "message": c.message, "line": c.span.line,
+                     "column": c.span.column} for c in result.changes],  # fmt: skip
+        "diff": line_diff(text, result.text),
+    }
+
+
+_TOKEN = re.compile(r"\s+|[\w.,]+|[^\w\s]", re.UNICODE)
+
+
+def line_diff(before: str, after: str) -> list[dict[str, Any]]:
+    """Changed lines, each with word-level parts: ``{"op": "equal"|"del"|"ins", "text"}``."""
+    a, b = before.split("\n"), after.split("\n")
+    rows: list[dict[str, Any]] = []
+    for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, a, b, autojunk=False).get_opcodes():
+        if tag == "equal":
+            continue
+        pairs = max(i2 - i1, j2 - j1)
+        for k in range(pairs):
+            old = a[i1 + k] if i1 + k < i2 else None
+            new = b[j1 + k] if j1 + k < j2 else None
+            rows.append({
+                "line": i1 + k + 1 if old is not None else None,
+                "parts": _word_parts(old, new),
+            })  # fmt: skip
+    return rows
+
+
+def _word_parts(old: str | None, new: str | None) -> list[dict[str, str]]:
+    if old is None:
+        return [{"op": "ins", "text": new or ""}]
+    if new is None:
+        return [{"op": "del", "text": old}]
+    x, y = _TOKEN.findall(old), _TOKEN.findall(new)
+    parts: list[dict[str, str]] = []
+    for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, x, y, autojunk=False).get_opcodes():
+        if tag == "equal":
+            parts.append({"op": "equal", "text": "".join(x[i1:i2])})
+            continue
+        if i2 > i1:
+            parts.append({"op": "del", "text": "".join(x[i1:i2])})
+        if j2 > j1:
+            parts.append({"op": "ins", "text": "".join(y[j1:j2])})
+    return _merge_small_gaps(parts)
+
+
+def _merge_small_gaps(parts: list[dict[str, str]]) -> list[dict[str, str]]:
+    """Fold one- or two-character unchanged pieces between changes into them, for legibility:
+    ``(s, 2H)`` → ``(2H, s)`` reads as one change, not four."""
+    out: list[dict[str, str]] = []
+    for k, part in enumerate(parts):
+        between = 0 < k < len(parts) - 1 and parts[k - 1]["op"] != "equal" != parts[k + 1]["op"]
+        if part["op"] == "equal" and between and len(part["text"].strip()) <= 2:
+            out += [{"op": "del", "text": part["text"]}, {"op": "ins", "text": part["text"]}]
+        else:
+            out.append(dict(part))
+    merged: list[dict[str, str]] = []
+    run: dict[str, str] = {}
+    for part in out + [{"op": "equal", "text": ""}]:
+        if part["op"] != "equal":
+            run[part["op"]] = run.get(part["op"], "") + part["text"]
+            continue
+        merged += [{"op": op, "text": run[op]} for op in ("del", "ins") if op in run]
+        run = {}
+        if part["text"]:
+            merged.append(part)
+    return merged
+
+
+@_one_at_a_time
+def read_upload(filename: str, data: bytes) -> dict[str, Any]:
+    """Text of an uploaded document; only the name's extension is used, never as a path."""
+    from ..api import InputError, read_source
+
+    base = os.path.basename(filename.replace("\\", "/")) or "upload"
+    ext = os.path.splitext(base)[1].lower()
+    if ext and ext not in _UPLOAD_FORMATS:
+        raise BadInput(f"{base}: {ext} files cannot be read here; open a .docx, .pdf, .tex, .md "
+                       "or .txt file (Word: File ▸ Save As ▸ Word Document)")  # fmt: skip
+    if not data:
+        raise BadInput(f"{base}: the file is empty")
+    try:
+        source = read_source(base, fmt=_UPLOAD_FORMATS.get(ext), data=data)
+    except InputError as exc:
+        raise BadInput(str(exc)) from None
+    return {"name": base, "format": source.format, "text": source.text}
+
+
+@_one_at_a_time
+def plot_png(text: str, block_index: int) -> bytes:
+    """The simulated 1H spectrum of one compound as PNG bytes, drawn by :mod:`peakproof.plot`."""
+    from ..api import Source, parse_source
+
+    doc = parse_source(Source(text=text, name="pasted text", format="txt"))
+    if block_index >= len(doc.blocks):
+        raise BadInput(f"there is no compound number {block_index}: the text has "
+                       f"{len(doc.blocks)} data block(s)")  # fmt: skip
+    block = doc.blocks[block_index]
+    if not any(s.nucleus == "1H" and s.signals for s in block.spectra):
+        raise BadInput(f"{block.compound or 'this block'} has no 1H NMR signals to simulate")
+    return _render_block_png(doc, block)
+
+
+def _render_block_png(doc, block) -> bytes:
+    from .. import plot
+
+    return plot.render_block(doc, block, fmt="png")
