@@ -140,7 +140,8 @@ def block_formula(block, override=None, index: LineIndex | None = None, *, indep
     Order: ``--formula``, the HRMS ion formula minus the adduct, the elemental-analysis formula,
     the formula written by the compound.  ``independent`` skips HRMS (to judge the HRMS formula).
     """
-    from .formula import FormulaError, neutral_from_ion, parse_formula
+    from .formula import FormulaError
+    from .rules._util import formula as parse_formula, neutral_of as neutral_from_ion
 
     if override is not None:
         return override, "--formula", None

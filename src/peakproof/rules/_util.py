@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import re
 
 #: Assignments that name an exchangeable proton (OH, NH, NH2, CO2H, COOH, SH).
@@ -41,3 +42,40 @@ def signal_label(signal) -> str:
 def number_edit_span(ctx, coupling):
     """The span of a coupling's number (its span may include "J = ")."""
     return ctx.number_span(coupling.span, coupling.text or fmt(coupling.value, 2))
+
+
+# Formulas and ion types recur across blocks and rules; they are immutable, so parse each once.
+@functools.lru_cache(maxsize=4096)
+def formula(text: str):
+    from ..formula import parse_formula
+
+    return parse_formula(text)
+
+
+@functools.lru_cache(maxsize=512)
+def ion_type(text: str):
+    from ..formula import parse_ion
+
+    return parse_ion(text)
+
+
+@functools.lru_cache(maxsize=4096)
+def neutral_of(formula_text: str, ion_text: str):
+    from ..formula import neutral_from_ion
+
+    return neutral_from_ion(formula(formula_text), ion_type(ion_text))
+
+
+@functools.lru_cache(maxsize=4096)
+def percentages(formula_text: str):
+    from ..masses import mass_percentages
+
+    return mass_percentages(formula(formula_text))
+
+
+def clear_caches() -> None:
+    """Forget parsed formulas (benchmarks measure a cold start with this)."""
+    from .mass_spec import _intended_ion
+
+    for cached in (formula, ion_type, neutral_of, percentages, _intended_ion):
+        cached.cache_clear()

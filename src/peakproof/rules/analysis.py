@@ -7,13 +7,15 @@ from ._util import fmt
 
 
 def _percentages(analysis):
-    from ..formula import FormulaError, parse_formula
-    from ..masses import MassError, mass_percentages
+    from ..formula import FormulaError
+    from ..masses import MassError
+
+    from ._util import percentages
 
     if not analysis.formula:
         return None
     try:
-        return mass_percentages(parse_formula(analysis.formula))
+        return percentages(analysis.formula)
     except (FormulaError, MassError):
         return None
 

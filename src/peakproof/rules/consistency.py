@@ -23,7 +23,8 @@ class FormulaMismatch(Rule):
     )
 
     def check(self, block, ctx):
-        from ..formula import FormulaError, neutral_from_ion, parse_formula
+        from ..formula import FormulaError
+        from ._util import formula as parse_formula, neutral_of as neutral_from_ion
 
         reference = ctx.formula
         if reference is None:

@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
-from . import Rule, suggestion
+import functools
+
+from . import Rule, _util, suggestion
 from ._util import fmt
 
 
@@ -11,30 +13,34 @@ def _decimals(text: str) -> int:
 
 
 def intended_ion(ms, ctx):
+    if not ms.formula:
+        return None
+    return _intended_ion(ms.formula, ms.ion, ctx.independent_formula)
+
+
+@functools.lru_cache(maxsize=4096)
+def _intended_ion(formula_text, ion_text, independent):
     """What the ion formula was meant to be: (ion Formula with charge, z, charge assumed?, problem).
 
     ``problem`` says why the written formula is not the ion (adduct missing, or the neutral
     compound's formula written); the returned formula is then the corrected one, so the calcd
     and found checks judge the numbers against the ion the author meant.
     """
-    from ..formula import FormulaError, ion_formula, neutral_from_ion, parse_formula, parse_ion
+    from ..formula import FormulaError, ion_formula, neutral_from_ion
 
-    if not ms.formula:
-        return None
     try:
-        written = parse_formula(ms.formula)
+        written = _util.formula(formula_text)
     except FormulaError:
         return None
     ion = None
-    if ms.ion:
+    if ion_text:
         try:
-            ion = parse_ion(ms.ion)
+            ion = _util.ion_type(ion_text)
         except FormulaError:
             ion = None
     problem = None
     intended = written
     if ion is not None:
-        independent = ctx.independent_formula
         try:
             neutral_from_ion(written, ion)
         except FormulaError as exc:
@@ -172,8 +178,6 @@ class HrmsAdduct(Rule):
     )
 
     def check(self, block, ctx):
-        from ..formula import parse_ion
-
         for ms in block.mass_spec:
             if not ms.ion:
                 continue
@@ -183,7 +187,7 @@ class HrmsAdduct(Rule):
             expected = ion[0].neutral().hill()
             fix = suggestion("the ion's formula", (ms.formula_span.start, ms.formula_span.end, expected)) \
                 if ms.formula_span else None
-            name = parse_ion(ms.ion).normalized
+            name = _util.ion_type(ms.ion).normalized
             yield self.finding(
                 ms.formula_span or ms.span, written=ms.formula, problem=ion[3], ion=name,
                 expected=expected, data={"written": ms.formula, "ion": name, "expected": expected},
