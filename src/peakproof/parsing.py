@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import gc
 import hashlib
 import os
 import re
@@ -96,7 +97,7 @@ def _builder_and_parser(fast: bool = True) -> tuple[BlockBuilder, Lark]:
     grammar_path = GRAMMAR_DIR / "peaks.lark"
     grammar = grammar_path.read_text(encoding="utf-8")
     if not fast:
-        grammar = re.sub(r"\n\s*\| (?:SIGNAL|BARE_SHIFT|HEADER)\b[^\n]*", "", grammar)
+        grammar = re.sub(r"\n\s*\| (?:SIGNALS|SIGNAL|BARE_SHIFT|HEADER)\b[^\n]*", "", grammar)
     options.update(import_paths=[str(GRAMMAR_DIR)], source_path=str(grammar_path))
     try:
         parser = Lark(grammar, cache=str(cache), **options)
@@ -114,14 +115,30 @@ def parse(text: str, *, path: str | None = None, fast: bool = True) -> Document:
     index = LineIndex(text)
     blocks: list[Block] = []
     diagnostics: list[Diagnostic] = []
-    view = normalize_for_locating(text)
-    for i, located in enumerate(locate(view.text)):
-        start, end = view.original(located.start), view.original_end(located.end)
-        block, diags = parse_block(text, start, end, index, fast=fast)
-        blocks.append(_with(block, index=i, suppressed=located.suppressed))
+    for block, diags in iter_blocks(text, index=index, fast=fast):
+        blocks.append(block)
         diagnostics.extend(diags)
     blocks = attach_compounds(text, blocks, index)
     return Document(text=text, blocks=tuple(blocks), diagnostics=tuple(diagnostics), path=path)
+
+
+def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool = True):
+    """Yield ``(block, diagnostics)`` one block at a time, so a caller that does not keep them
+    reads a large text in constant memory (compound labels are not attached here)."""
+    index = index or LineIndex(text)
+    view = normalize_for_locating(text)
+    # The model has no reference cycles: pausing the cyclic collector while building tens of
+    # thousands of small objects saves its repeated full scans.
+    gc_was_enabled = gc.isenabled()
+    gc.disable()
+    try:
+        for i, located in enumerate(locate(view.text)):
+            start, end = view.original(located.start), view.original_end(located.end)
+            block, diags = parse_block(text, start, end, index, fast=fast)
+            yield _with(block, index=i, suppressed=located.suppressed), diags
+    finally:
+        if gc_was_enabled:
+            gc.enable()
 
 
 def _with(block: Block, **changes) -> Block:
@@ -212,7 +229,11 @@ def _parse_piece(parser, builder, ctx, offset, piece, start):
     """Parse ``piece`` (at ``offset`` in the block) with positions kept block-relative."""
     # Pad with spaces so token offsets are block offsets: cheap, and keeps the Context simple.
     padded = " " * offset + piece
-    result = parser.parse(padded, start=start)
+    ctx.parsed = padded
+    try:
+        result = parser.parse(padded, start=start)
+    finally:
+        ctx.parsed = ctx.text
     return result if isinstance(result, list) else [result]
 
 

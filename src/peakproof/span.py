@@ -4,32 +4,73 @@ from __future__ import annotations
 
 from bisect import bisect_right
 from dataclasses import dataclass, field
-from typing import Any, NamedTuple
+from typing import Any
 
 
-class Span(NamedTuple):
+class Span:
     """A half-open range ``[start, end)`` of character offsets in the original text.
 
     ``line`` and ``column`` are 1-based and describe ``start``; ``end_line`` and
     ``end_column`` describe the last character (``end - 1``), or equal ``line``
-    and ``column`` for an empty span.
+    and ``column`` for an empty span.  Spans made by a :class:`LineIndex` work out their
+    line and column on first use (the parser makes tens of thousands and most are never
+    printed); treat spans as immutable.
     """
 
-    start: int
-    end: int
-    line: int
-    column: int
-    end_line: int
-    end_column: int
+    __slots__ = ("start", "end", "_where")
+
+    def __init__(self, start: int, end: int, line: int, column: int, end_line: int, end_column: int):
+        self.start = start
+        self.end = end
+        self._where = (line, column, end_line, end_column)
+
+    def _lines(self) -> tuple[int, int, int, int]:
+        where = self._where
+        if type(where) is not tuple:  # a LineIndex: resolve once
+            where = self._where = where.positions(self.start, self.end)
+        return where
+
+    @property
+    def line(self) -> int:
+        return self._lines()[0]
+
+    @property
+    def column(self) -> int:
+        return self._lines()[1]
+
+    @property
+    def end_line(self) -> int:
+        return self._lines()[2]
+
+    @property
+    def end_column(self) -> int:
+        return self._lines()[3]
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, Span):
+            return NotImplemented
+        return self.start == other.start and self.end == other.end and self._lines() == other._lines()
+
+    def __hash__(self) -> int:
+        return hash((self.start, self.end))
+
+    def __repr__(self) -> str:
+        line, column, end_line, end_column = self._lines()
+        return (f"Span(start={self.start}, end={self.end}, line={line}, column={column}, "
+                f"end_line={end_line}, end_column={end_column})")
+
+    def __reduce__(self):
+        return (Span, (self.start, self.end, *self._lines()))
 
     def to_json(self) -> dict[str, int]:
+        line, column, end_line, end_column = self._lines()
         return {
             "start": self.start,
             "end": self.end,
-            "line": self.line,
-            "column": self.column,
-            "end_line": self.end_line,
-            "end_column": self.end_column,
+            "line": line,
+            "column": column,
+            "end_line": end_line,
+            "end_column": end_column,
         }
 
     def excerpt(self, text: str) -> str:
@@ -37,7 +78,7 @@ class Span(NamedTuple):
         return text[self.start : self.end]
 
 
-_new_span = Span._make
+_new_object = object.__new__
 
 
 class LineIndex:
@@ -60,11 +101,18 @@ class LineIndex:
         return row + 1, offset - self._starts[row] + 1
 
     def span(self, start: int, end: int) -> Span:
+        span = _new_object(Span)
+        span.start = start
+        span.end = end
+        span._where = self
+        return span
+
+    def positions(self, start: int, end: int) -> tuple[int, int, int, int]:
         starts = self._starts
         row = bisect_right(starts, start) - 1
         last = end - 1 if end > start else start
         erow = bisect_right(starts, last, row) - 1
-        return _new_span((start, end, row + 1, start - starts[row] + 1, erow + 1, last - starts[erow] + 1))
+        return (row + 1, start - starts[row] + 1, erow + 1, last - starts[erow] + 1)
 
     def line_text(self, line: int) -> str:
         start = self._starts[line - 1]

@@ -37,13 +37,14 @@ from .vocabulary import (
 class Context:
     """Where the text being parsed sits in the document."""
 
-    __slots__ = ("base", "repaired", "index", "diagnostics", "text")
+    __slots__ = ("base", "repaired", "index", "diagnostics", "text", "parsed")
 
     def __init__(self, base: int, repaired: Repaired, index: LineIndex):
         self.base = base  # document offset of the parsed text's first original character
         self.repaired = repaired
         self.index = index
         self.text = repaired.text
+        self.parsed = repaired.text  # the string the parser is reading now
         self.diagnostics: list[Diagnostic] = []
 
     def span(self, start: int, end: int) -> Span:
@@ -91,6 +92,17 @@ class FastPatterns:
         )
         self.bare_j = re.compile(f"({pattern_of('NUMBER')})(?:\\s?{pattern_of('HZ')})?")
         self.spec_head = re.compile(pattern_of("SPEC_HEAD"))
+        num, hz = pattern_of("NUMBER"), pattern_of("HZ")
+        self.common = re.compile(
+            f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
+            f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
+            f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
+            f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
+        )
+        try:
+            self.one_signal = re.compile(f"(?:{pattern_of('SIGNAL')})|(?:{pattern_of('BARE_SHIFT')})")
+        except KeyError:  # the grammar without its fast path (used by tests)
+            self.one_signal = None
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
         )
@@ -200,7 +212,10 @@ class BlockBuilder(Transformer):
 
     def entry(self, c):
         if isinstance(c[0], Token):  # the fast-path tokens
-            return self._fast_entry(c[0])
+            tok = c[0]
+            if tok.type == "SIGNALS":
+                return self._fast_entries(tok)
+            return self._fast_entry(tok)
         shift = c[0]
         details = None
         ppm = False
@@ -210,6 +225,19 @@ class BlockBuilder(Transformer):
             else:
                 details = item
         return (shift, details)
+
+    def _fast_entries(self, tok: Token) -> list:
+        """A SIGNALS token: consecutive fast-path signals, split with their own pattern."""
+        one = self.fast.one_signal
+        parsed = self.ctx.parsed  # match in context: the token's own lookaheads saw past its end
+        pos = tok.start_pos
+        end = tok.end_pos
+        out = []
+        while pos < end:
+            m = one.match(parsed, pos)
+            out.append(self._fast_entry(Token("SIGNAL", m.group(0), start_pos=pos)))
+            pos = m.end()
+        return out
 
     def _fast_entry(self, tok: Token):
         """Split a SIGNAL or BARE_SHIFT token exactly as the token-by-token rules would."""
@@ -226,6 +254,9 @@ class BlockBuilder(Transformer):
             shift = (None, (number(hm.group(1)), number(hm.group(2))), shift_text, s_start, s_end)
         if paren < 0:
             return (shift, None)
+        cm = fast.common.match(text, hm.end())
+        if cm is not None:
+            return (shift, self._common_details(cm, base))
         close = text.rfind(")")
         mult = None
         couplings: list[Coupling] = []
@@ -278,12 +309,47 @@ class BlockBuilder(Transformer):
             (notes if is_note(free_text) else assignment).append(free_text)
         return (shift, (mult, tuple(couplings), count, assignment, notes, base + paren, base + close + 1))
 
+    def _common_details(self, m, base):
+        """Details of the commonest shape, ``(dd, J = 8.4, 2.1 Hz, 1H)``, read in one match."""
+        span = self.ctx.span
+        written = m.group("m")
+        name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
+        mult = Multiplicity(name=name, span=span(base + m.start("m"), base + m.end("m")),
+                            written=written, components=components, broad=broad,
+                            apparent=apparent, kind=kind, multiplier=multiplier)
+        couplings = []
+        if m.group("j1") is not None:
+            label = m.group("jl")
+            bonds, nuclei, lab = coupling_label(label)
+            label_start = base + m.start("jl") + len(label) - len(label.lstrip())
+            value = m.group("j1")
+            couplings.append(Coupling(value=number(value), span=span(label_start, base + m.end("j1")),
+                                      text=value.replace("\u2212", "-").replace(",", "."),
+                                      nuclei=nuclei, bonds=bonds, label=lab))
+            for g in ("j2", "j3"):
+                value = m.group(g)
+                if value is None:
+                    break
+                couplings.append(Coupling(value=number(value), span=span(base + m.start(g), base + m.end(g)),
+                                          text=value.replace("\u2212", "-").replace(",", ".")))
+        item = m.group("c")
+        cm = _COUNT.match(" ".join(item.split()))
+        value = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
+        count = ("count", value, cm.group("nuc"), item, bool(cm.group("each")),
+                 base + m.start("c"), base + m.end("c"))
+        return (mult, tuple(couplings), count, [], [], base + m.start("open"), base + m.end(0))
+
     def signal_list(self, c):
-        entries = [e for e in c if not isinstance(e, Token)]
+        entries = []
+        for e in c:
+            if isinstance(e, list):
+                entries.extend(e)
+            elif not isinstance(e, Token):
+                entries.append(e)
         return self._signals(entries)
 
     def entry_only(self, c):
-        return self._signals([c[0]])
+        return self._signals(c[0] if isinstance(c[0], list) else [c[0]])
 
     def _signals(self, entries):
         signals: list[Signal] = []
