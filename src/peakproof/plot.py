@@ -44,12 +44,13 @@ def plot_spectra(panels, path, *, width_px: int = 1800, height_px: int = 900,
     FigureCanvasAgg(fig)
     fig.patch.set_facecolor("white")
     rows = len(panels)
-    top_pad, bottom_pad = 0.55 / (height_px / DPI), 0.5 / (height_px / DPI)
-    gap = (1 - top_pad - bottom_pad) / rows
+    fig_h = height_px / DPI
+    above, below = 0.42 / fig_h, 0.48 / fig_h  # title line, axis ticks and label (inches)
+    slot = 1 / rows
     for row, (title, exact, first) in enumerate(panels):
-        bottom = 1 - top_pad - (row + 1) * gap + bottom_pad * 0.9 + 0.35 / (height_px / DPI)
-        height = gap - 0.75 / (height_px / DPI)
-        ax = fig.add_axes((0.04, bottom, 0.93, max(height, 0.05)))
+        bottom = 1 - (row + 1) * slot + below
+        height = max(slot - above - below, 0.02)
+        ax = fig.add_axes((0.035, bottom, 0.945, height))
         _draw_panel(fig, ax, title, exact, first, inset)
     fmt = "svg" if str(path).lower().endswith(".svg") else "png"
     fig.savefig(path, format=fmt, dpi=DPI, facecolor="white")
@@ -105,8 +106,8 @@ def _draw_panel(fig, ax, title, exact, first, inset) -> None:
     if not np.all(np.isnan(shown_first)):
         ax.plot(x, shown_first, color=FIRST_ORDER, lw=0.8, ls=(0, (3, 1.6)),
                 label="first order", zorder=4)
-        ax.legend(loc="upper right", bbox_to_anchor=(1.0, 1.0), frameon=False,
-                  fontsize=8, handlelength=2.2, borderaxespad=0.2)
+        ax.legend(loc="lower right", bbox_to_anchor=(1.0, 1.0), frameon=False, ncol=2,
+                  fontsize=8, handlelength=2.2, borderaxespad=0.1, columnspacing=1.2)
     ax.set_xlim(x[0], x[-1])  # high ppm on the left
 
     width_in = ax.get_position().width * fig.get_figwidth()
@@ -139,10 +140,20 @@ def _draw_panel(fig, ax, title, exact, first, inset) -> None:
 
 
 def title_text(title: str, implied) -> str:
-    parts = [f"{implied.nucleus} NMR", f"{implied.field_mhz:g} MHz"]
+    """The panel title, e.g. compound 3 — simulated ¹H NMR, 400 MHz, CDCl₃ (mathtext)."""
+    import re
+
+    mass = re.match(r"(\d+)(\D+)", implied.nucleus)
+    nucleus = f"$^{{{mass.group(1)}}}$" + mass.group(2) if mass else implied.nucleus
+    parts = [f"{nucleus} NMR", f"{implied.field_mhz:g} MHz"]
     if implied.solvent:
-        parts.append(implied.solvent)
-    return f"{title} — simulated " + ", ".join(parts)
+        parts.append(re.sub(r"(?<=[A-Za-z])(\d+)", r"$_{\1}$", _plain(implied.solvent)))
+    return f"{_plain(title)} — simulated " + ", ".join(parts)
+
+
+def _plain(text: str) -> str:
+    """Text with mathtext's dollar signs escaped."""
+    return text.replace("$", r"\$")
 
 
 def _label(signal) -> str:
@@ -206,24 +217,16 @@ def _draw_labels(ax, x, y, regions, ppm_per_inch) -> None:
 
 
 def _draw_integrals(ax, x, y, regions, implied, ppm_per_inch) -> None:
-    """Integral steps over each signal, labelled with its nuclei below the baseline."""
+    """The running integral as one stepped curve, each step labelled with its nuclei."""
     import numpy as np
 
-    counts = [signal.count for signal, *_ in regions]
-    if not counts:
+    if not regions:
         return
-    height_per_nucleus = 0.32 / max(counts)
-    anchors = []
-    for signal, low, high, inside in regions:
-        if not inside.any():
-            anchors.append(signal.shift_ppm)
-            continue
-        xs, ys = x[inside], y[inside]
-        steps = np.concatenate(([0.0], np.cumsum((ys[1:] + ys[:-1]) / 2)))
-        if steps[-1] > 0:
-            rise = steps / steps[-1] * signal.count * height_per_nucleus
-            ax.plot(xs, 0.04 + rise, color=INTEGRAL, lw=0.8, alpha=0.8, zorder=2)
-        anchors.append(float((xs[0] + xs[-1]) / 2))
+    steps = np.concatenate(([0.0], np.cumsum((y[1:] + y[:-1]) / 2)))
+    if steps[-1] > 0:
+        ax.plot(x, 0.02 + 0.88 * steps / steps[-1], color=INTEGRAL, lw=0.7, alpha=0.55,
+                zorder=2)
+    anchors = [signal.shift_ppm for signal, *_ in regions]
     step = 8 * 2.4 / 72 * ppm_per_inch  # "12H" at 8 pt, in ppm
     spots = _spread([-a for a in anchors], step, -x[0] + step / 2, -x[-1] - step / 2)
     for (signal, *_), spot in zip(regions, spots):
@@ -243,15 +246,17 @@ def _draw_inset(ax, exact, first, x, y, scale, window) -> None:
     y_first = first.curve(fine) / scale
     peak = max(float(y_exact.max()), 1e-9)
     # Put the inset where the main spectrum is lowest, below the label leaders.
+    anchors = [s.shift_ppm for s in exact.implied.signals]
     best, where = None, 0.02
-    for left in np.arange(0.02, 0.70, 0.02):
-        right_ppm = x[0] - (left + 0.28) * (x[0] - x[-1])
+    for left in np.arange(0.01, 0.79, 0.01):
         left_ppm = x[0] - left * (x[0] - x[-1])
+        right_ppm = x[0] - (left + 0.2) * (x[0] - x[-1])
         mask = (x <= left_ppm) & (x >= right_ppm)
-        height = float(y[mask].max()) if mask.any() else 0.0
-        if best is None or height < best - 1e-6:
-            best, where = height, left
-    box = ax.inset_axes((where, 0.36, 0.28, 0.36))
+        crossed = sum(1 for a in anchors if right_ppm <= a <= left_ppm)
+        score = (crossed, float(y[mask].max()) if mask.any() else 0.0)
+        if best is None or score < best:
+            best, where = score, left
+    box = ax.inset_axes((where, 0.34, 0.2, 0.36), zorder=6)
     box.plot(fine, y_exact / peak, color=INK, lw=0.8)
     if np.abs(y_exact - y_first).max() / peak > VISIBLE_DIFFERENCE:
         box.plot(fine, y_first / peak, color=FIRST_ORDER, lw=0.8, ls=(0, (3, 1.6)))
@@ -267,5 +272,5 @@ def _draw_inset(ax, exact, first, x, y, scale, window) -> None:
     box.xaxis.set_major_locator(MaxNLocator(nbins=4))
     hz = span * exact.implied.field_mhz
     box.set_title(f"{high:.2f}–{low:.2f} ppm ({hz:.0f} Hz)", fontsize=7, color=INK, pad=2)
-    box.patch.set_alpha(0.0)
+    box.patch.set_facecolor("white")
     ax.axvspan(low, high, color=SHADE, zorder=0, lw=0)
