@@ -313,3 +313,41 @@ def test_concurrent_requests_all_succeed():
                                             ("192.168.1.20", False), ("::", False)])  # fmt: skip
 def test_is_loopback(host, loopback):
     assert is_loopback(host) is loopback
+
+
+# ---- the spectrum picture ---------------------------------------------------------------------
+def _png_size(data: bytes) -> tuple[int, int]:
+    # PNG: 8-byte signature, then the IHDR chunk with big-endian width and height (ISO/IEC 15948)
+    assert data[:8] == b"\x89PNG\r\n\x1a\n"
+    return int.from_bytes(data[16:20], "big"), int.from_bytes(data[20:24], "big")
+
+
+def test_plot_is_a_png_of_the_chosen_compound(client):
+    import matplotlib.image
+    import numpy as np
+
+    from peakproof.web.app import PLOT_HEIGHT_PX, PLOT_WIDTH_PX
+
+    response = client.post("/api/plot", json={"text": demo_text(), "block": 0})
+    assert response.status_code == 200 and response.mimetype == "image/png"
+    assert _png_size(response.data) == (PLOT_WIDTH_PX, PLOT_HEIGHT_PX)
+    pixels = matplotlib.image.imread(io.BytesIO(response.data), format="png")
+    dark = (pixels[..., :3].mean(axis=2) < 0.5).mean()
+    assert 0.001 < dark < 0.2  # lines and labels drawn, not a blank or a filled picture
+    other = client.post("/api/plot", json={"text": demo_text(), "block": 1})
+    assert not np.array_equal(matplotlib.image.imread(io.BytesIO(other.data), format="png"), pixels)
+
+
+@pytest.mark.parametrize("block, words", [(99, "no compound number 99"), (-1, "'block'"),
+                                          ("1", "'block'"), (True, "'block'")])  # fmt: skip
+def test_plot_of_a_missing_compound_is_a_400(client, block, words):
+    response = client.post("/api/plot", json={"text": demo_text(), "block": block})
+    assert response.status_code == 400
+    assert words in response.get_json()["error"]
+
+
+def test_plot_without_1h_data_is_a_400(client):
+    text = "13C NMR (101 MHz, CDCl3) δ 128.4, 77.2."
+    response = client.post("/api/plot", json={"text": text, "block": 0})
+    assert response.status_code == 400
+    assert "no 1H NMR signals" in response.get_json()["error"]

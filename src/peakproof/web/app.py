@@ -19,6 +19,7 @@ from flask import Flask, Request, jsonify, request, send_from_directory
 from werkzeug.exceptions import HTTPException, RequestEntityTooLarge
 
 DEFAULT_MAX_MB = 20
+PLOT_WIDTH_PX, PLOT_HEIGHT_PX = 1600, 820
 _HERE = os.path.dirname(os.path.abspath(__file__))
 _STATIC = os.path.join(_HERE, "static")
 _UPLOAD_FORMATS = {
@@ -403,6 +404,22 @@ def plot_png(text: str, block_index: int) -> bytes:
 
 
 def _render_block_png(doc, block) -> bytes:
-    from .. import plot
+    """Exact and first-order simulations of the block's 1H spectra, drawn as ``peakproof plot``
+    draws them (same simulator, same plotting function)."""
+    from ..plot import PlotError, plot_spectra
+    from ..simulate.from_model import implied_spectrum, simulate_implied
+    from ..simulate.spin_system import SpinSystemError
 
-    return plot.render_block(doc, block, fmt="png")
+    title = f"compound {block.compound}" if block.compound else f"block {block.index + 1}"
+    panels = []
+    try:
+        for spectrum in block.spectra:
+            if spectrum.nucleus == "1H" and spectrum.signals:
+                implied = implied_spectrum(spectrum)
+                panels.append((title, simulate_implied(implied, "quantum"),
+                               simulate_implied(implied, "first-order")))  # fmt: skip
+        out = io.BytesIO()
+        plot_spectra(panels, out, width_px=PLOT_WIDTH_PX, height_px=PLOT_HEIGHT_PX * len(panels))
+    except (PlotError, SpinSystemError) as exc:
+        raise BadInput(f"the spectrum of {title} cannot be drawn: {exc}") from None
+    return out.getvalue()
