@@ -125,3 +125,17 @@ def test_bad_settings_are_errors_for_people(tmp_path):
     with pytest.raises(ConfigError, match="not valid TOML"):
         load_config(broken)
     assert "unknown rule" in config_from_table({"ignore": ["shift-ordr"]}).problems[0]
+
+
+def test_false_positive_guards():
+    # two equivalent OEt groups: CH2 4H (q) beside CH3 6H (t) is consistent (n+1 per group)
+    diethyl = "1H NMR (400 MHz, CDCl3) δ 4.10 (q, J = 7.1 Hz, 4H), 1.32 (t, J = 7.1 Hz, 6H)."
+    assert "reciprocity-count" not in rules(diethyl)
+    assert "reciprocity-count" in rules(diethyl.replace("6H", "5H"))
+    # a J that already has its partner is no near miss for an unrelated 7.5 Hz triplet
+    ester = ("1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 2.31 (t, J = 7.5 Hz, 2H), "
+             "1.25 (t, J = 7.1 Hz, 3H).")
+    assert "coupling-near-miss" not in rules(ester)
+    # a methyl ketone singlet (3H) at acetone's shift is the compound's own; an unassigned 1H is not
+    assert "solvent-coincidence" not in rules("1H NMR (400 MHz, CDCl3) δ 7.10 (s, 1H), 2.17 (s, 3H).")
+    assert "solvent-coincidence" in rules("1H NMR (400 MHz, CDCl3) δ 7.10 (s, 1H), 2.17 (s, 0.4H).")

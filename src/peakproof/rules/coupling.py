@@ -86,12 +86,17 @@ class CouplingNearMiss(Rule):
     def check(self, block, ctx):
         tol, near = ctx.config.coupling_tolerance, ctx.config.near_miss
         reported: set[frozenset] = set()
-        for spectrum, k, signal, ci in _unmatched_homonuclear(block, ctx):
+        orphans = list(_unmatched_homonuclear(block, ctx))
+        orphan_keys = {(id(sp), k, ci) for sp, k, _, ci in orphans}
+        for spectrum, k, signal, ci in orphans:
             c = signal.couplings[ci]
             best = _nearest(spectrum, k, c.value)
             if best is None or not (tol < best[0] <= near + 1e-9):
                 continue
             _, m, cj = best
+            # both values must lack a partner, and no multiplet without J may hide the real one
+            if (id(spectrum), m, cj) not in orphan_keys or _unreported_partner_possible(spectrum, k):
+                continue
             pair = frozenset({(id(spectrum), k, ci), (id(spectrum), m, cj)})
             if pair in reported:
                 continue

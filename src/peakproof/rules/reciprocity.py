@@ -89,7 +89,7 @@ class ReciprocityCount(Rule):
                     total = sum(counts)
                     # n equivalent partners: some of the signals carrying this J must hold exactly
                     # n nuclei. A d is exempt: symmetric AA'XX' pairs (2H beside 2H) are written d.
-                    if needed < 2 or _subset_sums_to(counts, needed) or _hidden_partners(spectrum, k):
+                    if needed < 2 or _accounted(counts, needed, signal.count) or _hidden_partners(spectrum, k):
                         continue
                     if _in_other_list(block, spectrum, c.value, tol):
                         continue  # part of the splitting is likely from 19F or 31P
@@ -99,6 +99,17 @@ class ReciprocityCount(Rule):
                         partners=f"no combination of the signals with that J ({names}; {fmt(total, 1)} H in all) holds {needed} H",
                         data={"needed": needed, "partner_count": total, "partners": sorted(nodes)},
                     )
+
+
+def _accounted(counts, needed: int, own: float | None) -> bool:
+    """Some partners hold n nuclei, or f·n when the signal itself is f equivalent groups
+    (the CH2 of two equivalent OEt groups integrates 4H beside a 6H CH3)."""
+    for f in range(1, 5):
+        if f > 1 and (own is None or abs(own / f - round(own / f)) > 1e-6 or own < f):
+            continue
+        if _subset_sums_to(counts, needed * f):
+            return True
+    return False
 
 
 def _subset_sums_to(counts, target: float) -> bool:

@@ -35,6 +35,14 @@ def _compatible(reported, tabulated: str | None) -> bool:
     return name == tab or (name == "s" and tab == "s")
 
 
+def _looks_like_own_group(signal) -> bool:
+    """An assigned signal, or a whole-number methyl-sized singlet (≥ 3H, e.g. a methyl ketone at
+    2.17), is more likely the compound's own than a single-group impurity (common practice)."""
+    if signal.assignment:
+        return True
+    return signal.count is not None and signal.count >= 3 and abs(signal.count - round(signal.count)) < 1e-6
+
+
 def _single_shift(signal):
     return signal.shift is not None and signal.range is None
 
@@ -85,7 +93,7 @@ class SolventCoincidence(Rule):
                 if hit is None and water is not None and abs(s.shift - water.shift) <= window + 1e-9:
                     if _compatible(s.multiplicity, "s"):
                         hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
-                if hit is None and spectrum.nucleus == "1H":
+                if hit is None and spectrum.nucleus == "1H" and not _looks_like_own_group(s):
                     for compound, groups in by_compound.items():
                         if len(groups) == 1 and abs(s.shift - groups[0].shift) <= 0.01 + 1e-9 and \
                                 s.multiplicity is not None and s.multiplicity.name == "s" == groups[0].multiplicity:
