@@ -494,7 +494,7 @@ class BlockBuilder(Transformer):
             ) if dec else ()
             if m.group("gap") or (dec and " " in dec.strip()):
                 ctx.note("repair-superscript",
-                         f"read '{' '.join(head.value.split())}' as {nucleus} NMR "
+                         f"read '{' '.join(head.value[start - head.start_pos:].split())}' as {nucleus} NMR "
                          "(a superscript lost its place)", start, _stripped_end(head))
         else:
             letter = re.search(r"[HCFPBN]", head.value[head.value.index("δ") :]).group(0)
