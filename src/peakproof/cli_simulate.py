@@ -13,7 +13,8 @@ SIMULATE_FORMATS = ("json", "jcamp", "nmredata")
 
 
 def add_arguments(name, parser) -> None:
-    parser.add_argument("file", metavar="FILE", help="a .txt/.md/.tex/.docx/.pdf file, or - for stdin")
+    parser.add_argument("file", metavar="FILE",
+                        help="a .txt/.md/.tex/.docx/.pdf file, or - for stdin")
     parser.add_argument("--compound", metavar="N", default=None,
                         help="only this compound: its label (e.g. 1a) or its 1-based block number")
     parser.add_argument("--field", type=float, metavar="MHZ", default=None,
@@ -201,7 +202,8 @@ def _parse_inset(text: str | None) -> tuple[float, float] | None:
     try:
         low, high = (float(part.replace("−", "-")) for part in text.split(":"))
     except ValueError:
-        raise _Refusal(f"--inset {text!r}: write two shifts in ppm as LO:HI, e.g. 7.0:7.3") from None
+        raise _Refusal(
+            f"--inset {text!r}: write two shifts in ppm as LO:HI, e.g. 7.0:7.3") from None
     if low == high:
         raise _Refusal(f"--inset {text!r}: the two shifts must differ")
     return (min(low, high), max(low, high))

@@ -32,7 +32,8 @@ def _pattern(lines):
     return [(weighted / total, total) for weighted, total, _ in groups]
 
 
-ETHYL = "Ethyl ester 21: 1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 1.25 (t, J = 7.1 Hz, 3H)."
+ETHYL = ("Ethyl ester 21: 1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), "
+         "1.25 (t, J = 7.1 Hz, 3H).")
 
 
 def test_ethyl_gives_a2x3_and_qm_agrees_with_first_order():
@@ -61,7 +62,8 @@ def test_para_disubstituted_pair_is_two_ab_systems_with_closed_form_lines():
     assert sorted(implied.system.couplings.values()) == [8.6, 8.6]
     assert any("copies" in note for note in implied.notes)
     lines = _pattern(simulate_implied(implied).simulation.lines)
-    # AB closed form (NMR textbooks): lines at ν₀ ± ½(D ± J), D = √(Δν² + J²), ∝ 1 ∓ J/D.
+    # AB closed form (NMR textbooks): lines at ν₀ ± ½(D ± J), D = √(Δν² + J²),
+    # intensities ∝ 1 ∓ J/D.
     nu0, dnu, j = (7.64 + 7.57) / 2 * 400, 0.07 * 400, 8.6
     d = math.hypot(dnu, j)
     expected = [(nu0 - (d + j) / 2, 1 - j / d), (nu0 - (d - j) / 2, 1 + j / d),
