@@ -21,6 +21,17 @@ def is_loopback(host: str) -> bool:
 
 def make_server(host: str = "127.0.0.1", port: int = 8765, max_request_mb: float = DEFAULT_MAX_MB):
     """A threaded WSGI server for the page (``port=0`` picks a free port: see ``.port``)."""
+    import socket
+
     from werkzeug.serving import make_server as _make_server
 
-    return _make_server(host, port, create_app(max_request_mb), threaded=True)
+    # Werkzeug reports a busy port by printing and exiting; try the address first so the
+    # caller gets an OSError it can explain.
+    family = socket.AF_INET6 if ":" in host else socket.AF_INET
+    with socket.socket(family, socket.SOCK_STREAM) as probe:
+        probe.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
+        probe.bind((host.strip("[]"), port))
+    try:
+        return _make_server(host, port, create_app(max_request_mb), threaded=True)
+    except SystemExit:
+        raise OSError(f"cannot listen on {host}:{port}") from None
