@@ -7,7 +7,7 @@ from __future__ import annotations
 
 __version__ = "0.1.0"
 
-__all__ = ["__version__", "parse", "parse_file"]
+__all__ = ["__version__", "check", "format_text", "parse", "parse_file"]
 
 
 def parse(text: str, *, path: str | None = None):
@@ -22,3 +22,17 @@ def parse_file(path, *, fmt: str | None = None):
     from .api import parse_path
 
     return parse_path(path, fmt=fmt)[1]
+
+
+def check(document, *, config=None, formula: str | None = None):
+    """Check a parsed document; returns findings (``.diagnostics``) and coupling networks."""
+    from .api import check as _check
+
+    return _check(document, config=config, formula=formula)
+
+
+def format_text(text: str, style: str = "letters-first", *, round_numbers: bool = False):
+    """Rewrite the data blocks of ``text`` in one style, safely (see :mod:`peakproof.safety`)."""
+    from .api import format_text as _format_text
+
+    return _format_text(text, style, round_numbers=round_numbers)

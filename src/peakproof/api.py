@@ -64,3 +64,19 @@ def parse_source(source: Source) -> Document:
 def parse_path(path, *, fmt: str | None = None) -> tuple[Source, Document]:
     source = read_source(path, fmt=fmt)
     return source, parse_source(source)
+
+
+def check(document: Document, *, config=None, formula: str | None = None):
+    """Findings and coupling networks for a parsed document (``checker.CheckResult``)."""
+    from .checker import check_document
+
+    return check_document(document, config, formula)
+
+
+def format_text(text: str, style: str = "letters-first", *, round_numbers: bool = False):
+    """Rewrite the data blocks of ``text`` in ``style``; the result is checked before it is returned
+    (raises ``safety.UnsafeFormat`` rather than return text whose data changed)."""
+    from .safety import checked_format
+    from .styles import get_style
+
+    return checked_format(text, get_style(style), round_numbers=round_numbers)
