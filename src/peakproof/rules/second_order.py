@@ -20,6 +20,26 @@ def _first_order_pairs(spectrum, ctx):
         yield a, b, edge
 
 
+def _exact_effect(a, b, edge, field_mhz):
+    """The exact (quantum) AB spectrum against the first-order doublets, for the message."""
+    try:
+        from ..simulate.verdict import second_order_effect
+
+        return second_order_effect(a.position, b.position, edge.j_hz, field_mhz)
+    except Exception:  # the numbers of the rule of thumb still stand without the simulation
+        return None
+
+
+def _effect_text(effect) -> str:
+    if effect is None:
+        return ""
+    text = (f"; simulated exactly, the lines sit up to {effect.max_line_shift_hz:.2f} Hz from the "
+            f"first-order positions and the inner lines are {effect.roof_ratio:.1f}× the outer")
+    if effect.extra_lines:
+        text += f", with {effect.extra_lines} extra line(s)"
+    return text
+
+
 class _SecondOrder(Rule):
     low = 0.0
     high = 0.0
@@ -30,14 +50,17 @@ class _SecondOrder(Rule):
                 continue
             for a, b, edge in _first_order_pairs(spectrum, ctx):
                 if self.low <= edge.ratio < self.high:
+                    effect = _exact_effect(a, b, edge, spectrum.frequency_mhz)
                     yield self.finding(
                         b.multiplicity.span,  # pair findings point at the later-listed member
                         here=signal_label(a), there=signal_label(b), j=fmt(edge.j_hz, 2),
                         dnu=fmt(edge.delta_nu_hz, 1), ratio=fmt(edge.ratio, 1),
                         mhz=fmt(spectrum.frequency_mhz, 1),
+                        effect=_effect_text(effect),
                         data={"delta_nu_hz": round(edge.delta_nu_hz, 3), "j_hz": edge.j_hz,
                               "ratio": round(edge.ratio, 3), "frequency_mhz": spectrum.frequency_mhz,
-                              "partner_shift": b.position},
+                              "partner_shift": b.position,
+                              "exact": effect.to_json() if effect else None},
                     )
 
 
@@ -48,7 +71,7 @@ class SecondOrderAB(_SecondOrder):
     code = "PP221"
     severity = "warning"
     low, high = 0.0, 4.0
-    message = "{here} and {there} share J = {j} Hz but are only {dnu} Hz apart at {mhz} MHz (Δν/J = {ratio} < 4); report them as an AB system or an apparent multiplet"
+    message = "{here} and {there} share J = {j} Hz but are only {dnu} Hz apart at {mhz} MHz (Δν/J = {ratio} < 4){effect}; report them as an AB system or an apparent multiplet"
     rationale = (
         "When Δν/J is small the lines lean (roofing) and shift from first-order positions; below "
         "about 4 the pattern should be shown as AB (with J and both shifts) or as m."
@@ -67,7 +90,7 @@ class SecondOrderApproximate(_SecondOrder):
     code = "PP222"
     severity = "note"
     low, high = 4.0, 10.0
-    message = "{here} and {there} share J = {j} Hz and are {dnu} Hz apart at {mhz} MHz (Δν/J = {ratio} < 10); first-order shifts and J values are approximate here"
+    message = "{here} and {there} share J = {j} Hz and are {dnu} Hz apart at {mhz} MHz (Δν/J = {ratio} < 10){effect}; first-order shifts and J values are approximate here"
     rationale = "First-order analysis holds when Δν ≫ J; Δν/J ≳ 10 is the usual threshold."
     source = "common practice (textbook rule of thumb)"
     examples = (
