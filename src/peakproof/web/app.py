@@ -362,11 +362,30 @@ def _merge_small_gaps(parts: list[dict[str, str]]) -> list[dict[str, str]]:
         if part["op"] != "equal":
             run[part["op"]] = run.get(part["op"], "") + part["text"]
             continue
-        merged += [{"op": op, "text": run[op]} for op in ("del", "ins") if op in run]
+        merged += _trim_common(run.get("del", ""), run.get("ins", ""))
         run = {}
         if part["text"]:
             merged.append(part)
-    return merged
+    joined: list[dict[str, str]] = []
+    for part in merged:  # neighbours of one kind, left by the trimming, become one piece
+        if joined and joined[-1]["op"] == part["op"]:
+            joined[-1]["text"] += part["text"]
+        elif part["text"]:
+            joined.append(part)
+    return joined
+
+
+def _trim_common(old: str, new: str) -> list[dict[str, str]]:
+    """A deletion and an insertion with their shared start and end shown as unchanged."""
+    if not old or not new:
+        return [{"op": op, "text": t} for op, t in (("del", old), ("ins", new)) if t]
+    head = len(os.path.commonprefix([old, new]))
+    tail = len(os.path.commonprefix([old[head:][::-1], new[head:][::-1]]))
+    parts = [{"op": "equal", "text": old[:head]},
+             {"op": "del", "text": old[head : len(old) - tail]},
+             {"op": "ins", "text": new[head : len(new) - tail]},
+             {"op": "equal", "text": old[len(old) - tail :]}]  # fmt: skip
+    return [p for p in parts if p["text"]]
 
 
 @_one_at_a_time

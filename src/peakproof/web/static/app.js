@@ -86,6 +86,8 @@
       renderCounts();
       $("detail").hidden = true;
       $("results").hidden = false;
+      document.body.classList.add("checked");
+      $("input").scrollTop = 0;
       await Promise.all([runFormat(), loadPlot()]);
     } catch (error) {
       showError(`Could not check the text: ${error.message}`);
