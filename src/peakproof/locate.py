@@ -44,7 +44,11 @@ class Located:
 
 def locate(text: str) -> list[Located]:
     """Every data block in ``text``, in order, with its half-open offsets."""
-    blocks: list[Located] = []
+    return list(iter_locate(text))
+
+
+def iter_locate(text: str):
+    """Yield the data blocks of ``text`` one by one (constant memory on long texts)."""
     pos = 0
     n = len(text)
     previous_end = 0
@@ -60,10 +64,9 @@ def locate(text: str) -> list[Located]:
         if end <= m.start():
             pos = m.end()
             continue
-        blocks.append(Located(start, end, _markers(text, previous_end, end)))
+        yield Located(start, end, _markers(text, previous_end, end))
         previous_end = end
         pos = end
-    return blocks
 
 
 def _reach_back(text: str, core: int, floor: int) -> int:

@@ -14,7 +14,7 @@ from lark import Lark
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from .compounds import attach_compounds
-from .locate import CORE_START, OTHER_START, locate
+from .locate import CORE_START, OTHER_START, iter_locate
 from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
 from .repair import Repaired, normalize_for_locating, repair
 from .span import Diagnostic, LineIndex
@@ -132,7 +132,7 @@ def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool = True)
     gc_was_enabled = gc.isenabled()
     gc.disable()
     try:
-        for i, located in enumerate(locate(view.text)):
+        for i, located in enumerate(iter_locate(view.text)):
             start, end = view.original(located.start), view.original_end(located.end)
             block, diags = parse_block(text, start, end, index, fast=fast)
             yield _with(block, index=i, suppressed=located.suppressed), diags

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from array import array
 from bisect import bisect_right
 from dataclasses import dataclass, field
 from typing import Any
@@ -88,7 +89,7 @@ class LineIndex:
 
     def __init__(self, text: str):
         self.text = text
-        starts = [0]
+        starts = array("q", [0])  # 8 bytes a line: memory stays small on long texts
         find = text.find
         i = find("\n")
         while i != -1:
