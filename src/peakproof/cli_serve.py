@@ -9,11 +9,13 @@ from .cli import EXIT_OK, EXIT_USAGE
 
 def add_arguments(name, parser) -> None:
     parser.add_argument("--host", default="127.0.0.1",
-                        help="address to listen on (default 127.0.0.1: this computer only)")  # fmt: skip
-    parser.add_argument("--port", type=int, default=8765, help="port (default 8765; 0: any free one)")
+                        help="address to listen on (default 127.0.0.1: this computer only)",
+                        )  # fmt: skip
+    parser.add_argument("--port", type=int, default=8765,
+                        help="port (default 8765; 0: any free one)")  # fmt: skip
     parser.add_argument("--open", action="store_true", help="open the page in the web browser")
     parser.add_argument("--max-mb", type=float, default=None, metavar="MB",
-                        help="largest request or upload accepted, in megabytes (default 20)")  # fmt: skip
+                        help="largest request or upload accepted, in MB (default 20)")  # fmt: skip
 
 
 def run(args) -> int:

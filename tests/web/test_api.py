@@ -114,7 +114,8 @@ def test_counts_per_rule_add_up(demo_check):
 
 def test_offsets_past_the_basic_plane_stay_exact(client):
     # Python counts code points, JavaScript UTF-16 units: the page only uses the pieces.
-    text = "🧪 note 𝛿 1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), 3.80 (s, J = 1.2 Hz, 3H)."
+    text = ("🧪 note 𝛿 1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), "
+            "3.80 (s, J = 1.2 Hz, 3H).")
     payload = client.post("/api/check", json={"text": text}).get_json()
     assert "".join(s["text"] for s in payload["segments"]) == text
     singlet = [f for f in payload["findings"] if f["rule"] == "singlet-with-j"]
@@ -136,7 +137,8 @@ def test_script_in_the_text_comes_back_as_plain_json_text(client):
 def test_empty_span_findings_become_point_pieces():
     from peakproof.web.app import segments
 
-    findings = [{"id": 0, "span": {"start": 3, "end": 3}}, {"id": 1, "span": {"start": 2, "end": 5}}]
+    findings = [{"id": 0, "span": {"start": 3, "end": 3}},
+                {"id": 1, "span": {"start": 2, "end": 5}}]  # fmt: skip
     pieces = segments("abcdefg", findings)
     assert pieces == [
         {"text": "ab", "ids": []},
@@ -178,7 +180,8 @@ def test_format_of_already_formatted_text_has_no_diff(client):
 def test_unknown_style_is_a_400_naming_the_choices(client):
     response = client.post("/api/format", json={"text": "1H NMR δ 7.26 (s, 1H)", "style": "fancy"})
     assert response.status_code == 400
-    assert "fancy" in response.get_json()["error"] and "letters-first" in response.get_json()["error"]
+    message = response.get_json()["error"]
+    assert "fancy" in message and "letters-first" in message
 
 
 # ---- malformed and oversized requests ---------------------------------------------------------

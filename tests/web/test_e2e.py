@@ -33,10 +33,11 @@ def browser():
         from playwright.sync_api import sync_playwright
     except ImportError:
         _unavailable("the playwright package is not installed")
-    if not (os.path.exists(CHROMIUM) or shutil.which("chromium")):
-        _unavailable(f"no Chromium at {CHROMIUM}")
+    executable = CHROMIUM if os.path.exists(CHROMIUM) else shutil.which("chromium")
+    if executable is None:
+        _unavailable(f"no Chromium at {CHROMIUM} or on PATH")
     with sync_playwright() as playwright:
-        browser = playwright.chromium.launch(executable_path=CHROMIUM, args=CHROMIUM_ARGS)
+        browser = playwright.chromium.launch(executable_path=executable, args=CHROMIUM_ARGS)
         yield browser
         browser.close()
 
@@ -138,7 +139,8 @@ def test_paste_the_demo_and_see_every_finding_in_place(page):
     for compound, start, end in planted_ranges(text):
         assert any(m["start"] < end and start < m["end"] for m in shown["marks"]), compound
     # severity is shown by an icon as well as colour
-    icons = {m["severity"]: m["icon"] for m in shown["marks"] if m["icon"] not in ("none", "normal")}
+    icons = {m["severity"]: m["icon"] for m in shown["marks"]
+             if m["icon"] not in ("none", "normal")}  # fmt: skip
     assert set(icons) == {d.severity for d in expected}
     assert len(set(icons.values())) == len(icons)
     assert page.text_content("#findings-count") == f"({len(expected)})"
@@ -207,7 +209,8 @@ def test_switch_style_copy_and_see_the_diff(page):
     wait_until(page, "expected => document.getElementById('formatted').textContent === expected",
                wanted)
     page.click("#copy-button")
-    wait_until(page, "() => document.getElementById('copy-status').textContent.startsWith('Copied')")
+    wait_until(page, "() => document.getElementById('copy-status').textContent"
+               ".startsWith('Copied')")
     assert page.evaluate("navigator.clipboard.readText()") == wanted
     page.click("#tab-diff")
     assert page.locator("#diff").is_visible() and not page.locator("#formatted").is_visible()
@@ -215,7 +218,8 @@ def test_switch_style_copy_and_see_the_diff(page):
     # the first changed line reads as the old line with deletions and the new with insertions
     row = page.locator("#diff .diff-row").first
     old = row.evaluate("r => [...r.querySelector('.diff-text').childNodes]"
-                       ".filter(n => n.nodeName !== 'INS').map(n => n.textContent).join('')")  # fmt: skip
+                       ".filter(n => n.nodeName !== 'INS')"
+                       ".map(n => n.textContent).join('')")  # fmt: skip
     line_no = int(row.locator(".gutter").text_content())
     assert old == text.split("\n")[line_no - 1]
 
@@ -226,8 +230,10 @@ def test_open_the_demo_docx(page):
     docx_text = read_source(str(DEMO_DOCX)).text
     expected = _expected_findings(docx_text)
     page.set_input_files("#file-input", str(DEMO_DOCX))
-    wait_until(page, "() => document.getElementById('file-name').textContent.includes('demo_si.docx')")
-    wait_until(page, "n => document.querySelectorAll('#findings-list li').length === n", len(expected))
+    wait_until(page, "() => document.getElementById('file-name').textContent"
+               ".includes('demo_si.docx')")
+    wait_until(page, "n => document.querySelectorAll('#findings-list li').length === n",
+               len(expected))
     assert page.input_value("#input") == docx_text
     shown = page.evaluate(_MARKS_JS)
     assert shown["text"] == docx_text
@@ -247,7 +253,8 @@ def test_an_unreadable_file_gives_a_message(page, tmp_path):
 def test_pasted_script_is_shown_as_text_and_never_run(page):
     hostile = ('<script>window.__peakproof_hacked = 1</script>'
                '<img src=x onerror="window.__peakproof_hacked = 2">\n'
-               '1H NMR (400 MHz, CDCl3) δ 7.26 (s, J = 1.2 Hz, 1H) <b onmouseover="window.__peakproof_hacked=3">x</b>')  # fmt: skip
+               '1H NMR (400 MHz, CDCl3) δ 7.26 (s, J = 1.2 Hz, 1H) '
+               '<b onmouseover="window.__peakproof_hacked=3">x</b>')  # fmt: skip
     _check(page, hostile)
     page.wait_for_selector("#marked mark")
     page.hover("#marked mark")

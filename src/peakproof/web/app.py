@@ -144,8 +144,8 @@ def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
 
     @app.errorhandler(RequestEntityTooLarge)
     def too_large(exc):
-        return _error(413, f"the request is larger than the {max_request_mb:g} MB limit; "
-                      "split the document, or restart with 'peakproof serve --max-mb N'")  # fmt: skip
+        return _error(413, f"the request is larger than the {max_request_mb:g} MB limit; split "
+                      "the document, or restart with 'peakproof serve --max-mb N'")  # fmt: skip
 
     @app.errorhandler(HTTPException)
     def http_error(exc):
@@ -167,7 +167,8 @@ def _error(status: int, message: str):
 
 def _json_body() -> dict[str, Any]:
     if not request.is_json:
-        raise BadInput("send JSON (Content-Type: application/json), e.g. {\"text\": \"1H NMR …\"}")
+        raise BadInput("send JSON (Content-Type: application/json), "
+                       "e.g. {\"text\": \"1H NMR …\"}")
     body = request.get_json(silent=True)
     if body is None:
         raise BadInput("the request is not valid JSON")
@@ -200,7 +201,8 @@ def analyse(text: str) -> dict[str, Any]:
         "segments": segments(text, findings),
         "counts": rule_counts(findings),
         "compounds": [_compound_json(b) for b in doc.blocks],
-        "totals": {s: sum(f["severity"] == s for f in findings) for s in ("error", "warning", "note")},
+        "totals": {s: sum(f["severity"] == s for f in findings)
+                   for s in ("error", "warning", "note")},  # fmt: skip
     }
 
 
@@ -284,7 +286,7 @@ def _compound_json(block) -> dict[str, Any]:
 
 @_one_at_a_time
 def format_text(text: str, style_name: str | None, round_numbers: bool = False) -> dict[str, Any]:
-    """The text in ``style_name`` (checked by :func:`peakproof.safety.checked_format`) and a diff."""
+    """The text in ``style_name``, proved safe by ``safety.checked_format``, and a diff."""
     from ..safety import UnsafeFormat, checked_format
     from ..styles import DEFAULT, StyleError, get_style
 
