@@ -7,7 +7,7 @@ import hashlib
 import os
 import re
 import tempfile
-from functools import lru_cache
+import threading
 from pathlib import Path
 
 from lark import Lark
@@ -70,8 +70,21 @@ def _grammar_files() -> list[Path]:
     return sorted(GRAMMAR_DIR.glob("*.lark"))
 
 
-@lru_cache(maxsize=2)
+_PER_THREAD = threading.local()
+
+
 def _builder_and_parser(fast: bool = True) -> tuple[BlockBuilder, Lark]:
+    """This thread's parser: the transformer keeps the block being read, so threads never share one."""
+    pairs = getattr(_PER_THREAD, "pairs", None)
+    if pairs is None:
+        pairs = _PER_THREAD.pairs = {}
+    pair = pairs.get(fast)
+    if pair is None:
+        pair = pairs[fast] = _build(fast)
+    return pair
+
+
+def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
     """The LALR parser with the transformer inside, built once and cached on disk.
 
     ``fast=False`` drops the fast-path tokens (SIGNAL, BARE_SHIFT) so tests can check that both
