@@ -1,4 +1,18 @@
-"""Associate each data block with its compound: the label or heading before it, and its formula."""
+"""Associate each data block with its compound: the label or heading before it, and its formula.
+
+Looked for in the text between the previous block and this one, nearest first:
+
+1. a heading line: Markdown ``#``, or a short line ending in a label (``… benzoate (12)``,
+   optionally followed by the compound's formula: ``(12), C10H9NO2`` or ``(12; C10H9NO2)``);
+   a ``#`` heading without a label names the compound by its title;
+2. ``compound 12`` / ``product 3a`` in the text;
+3. a label in parentheses in the sentence that introduces the block (``… benzoate (12):``);
+4. a title standing alone on its line right before the block (``Methyl benzoate``).
+
+The formula is one written by the name (in the heading, or right after the label), else the
+elemental analysis formula.  The HRMS ion formula is left to the checker, which knows the
+adduct to take away.
+"""
 
 from __future__ import annotations
 
@@ -8,10 +22,21 @@ from dataclasses import replace
 from .model import Block
 from .span import LineIndex
 
+_LABEL_TEXT = r"\d{1,3}[a-z]?['′]?|[IVX]{1,5}[a-z]?|S\d{1,3}[a-z]?"
+_FORMULA_TEXT = r"C\d{1,3}H\d{0,3}(?:[A-Z][a-z]?\d{0,3})*"
 _HEADING = re.compile(r"^[ \t]*(?:#{1,6}[ \t]+)?(?P<title>\S[^\n]{0,200}?)[ \t]*$", re.M)
-_LABEL = re.compile(r"\((?P<label>\d{1,3}[a-z]?|[IVX]{1,5}[a-z]?|S?\d{1,3}[a-z]?['′]?)\)\s*[.:]?\s*$")
+# "(12)", "(12), C10H9NO2", "(12; C10H9NO2)", at the end of a heading line
+_LABEL_AT_END = re.compile(
+    rf"\((?P<label>{_LABEL_TEXT})(?:\s*[;,]\s*(?P<inner>{_FORMULA_TEXT}))?\)"
+    rf"(?:\s*[,:;]?\s*\(?(?P<after>{_FORMULA_TEXT})\)?)?\s*[.:]?\s*$"
+)
+_FORMULA_AT_END = re.compile(rf"[\s,:;(]+(?P<formula>{_FORMULA_TEXT})\)?\s*[.:]?\s*$")
 _COMPOUND_WORD = re.compile(r"\b(?:[Cc]ompound|[Pp]roduct)\s+(?P<label>\d{1,3}[a-z]?)\b")
-_FORMULA_NEAR = re.compile(r"\b(?:C\d{1,3}H\d{1,3}(?:[A-Z][a-z]?\d{0,3})*)\b")
+_LABEL_IN_SENTENCE = re.compile(
+    rf"\((?P<label>\d{{1,3}}[a-z]?)(?:\s*[;,]\s*(?P<inner>{_FORMULA_TEXT}))?\)"
+    rf"(?:\s*[,:;]?\s*\(?(?P<after>{_FORMULA_TEXT})\)?(?![\w(]))?"
+)
+_MAX_TITLE = 160
 
 
 def attach_compounds(text: str, blocks: list[Block], index: LineIndex) -> list[Block]:
@@ -20,38 +45,79 @@ def attach_compounds(text: str, blocks: list[Block], index: LineIndex) -> list[B
     floor = 0
     for block in blocks:
         before = text[floor : block.span.start]
-        compound, c_start, c_end = _compound_before(before)
-        formula = None
-        if block.analyses and block.analyses[0].formula:
+        found = _compound_before(before)
+        formula = found.formula if found else None
+        if formula is None and block.analyses and block.analyses[0].formula:
             formula = block.analyses[0].formula
-        if compound is not None:
-            c_span = index.span(floor + c_start, floor + c_end)
-            out.append(replace(block, compound=compound, compound_span=c_span, formula=formula))
+        if found is not None:
+            c_span = index.span(floor + found.start, floor + found.end)
+            out.append(replace(block, compound=found.name, compound_span=c_span, formula=formula))
         else:
             out.append(replace(block, formula=formula))
         floor = block.span.end
     return out
 
 
-def _compound_before(before: str) -> tuple[str | None, int, int]:
-    """The nearest heading or label before a block, as (name, start, end) in ``before``."""
-    # Prefer a heading line (Markdown '#', or a short line ending in a label like "(12)").
-    lines = list(_HEADING.finditer(before))
-    for m in reversed(lines):
-        title = m.group("title").strip()
-        raw = before[m.start() : m.end()]
-        if raw.lstrip().startswith("#") or (_LABEL.search(title) and len(title) < 160):
-            label = _LABEL.search(title)
-            name = label.group("label") if label else title.lstrip("#").strip()
-            start = m.start("title") + (label.start("label") if label else 0)
-            end = start + len(name)
-            return name, start, end
-    m = None
-    for m in _COMPOUND_WORD.finditer(before):
+class _Found:
+    __slots__ = ("name", "start", "end", "formula")
+
+    def __init__(self, name: str, start: int, end: int, formula: str | None = None):
+        self.name, self.start, self.end, self.formula = name, start, end, formula
+
+
+def _compound_before(before: str) -> _Found | None:
+    """The nearest heading or label before a block; offsets are in ``before``."""
+    for m in reversed(list(_HEADING.finditer(before))):
+        title = m.group("title")
+        if len(title) > _MAX_TITLE:
+            continue
+        label = _LABEL_AT_END.search(title)
+        if label:
+            start = m.start("title") + label.start("label")
+            formula = label.group("inner") or label.group("after")
+            return _Found(label.group("label"), start, start + len(label.group("label")), formula)
+        if before[m.start() : m.end()].lstrip().startswith("#"):
+            return _titled(title, m.start("title"))
+    word = None
+    for word in _COMPOUND_WORD.finditer(before):
         pass
-    if m:
-        return m.group("label"), m.start("label"), m.end("label")
-    # A label in parentheses right after a name in the sentence that introduces the block.
-    for m in reversed(list(re.finditer(r"\((\d{1,3}[a-z]?)\)", before))):
-        return m.group(1), m.start(1), m.end(1)
-    return None, 0, 0
+    if word:
+        return _Found(word.group("label"), word.start("label"), word.end("label"))
+    sentence = None
+    for sentence in _LABEL_IN_SENTENCE.finditer(before):
+        pass
+    if sentence:
+        formula = sentence.group("inner") or sentence.group("after")
+        return _Found(sentence.group("label"), sentence.start("label"), sentence.end("label"), formula)
+    return _standalone_title(before)
+
+
+def _titled(title: str, start: int) -> _Found:
+    """A heading without a label: its title is the name, less a formula written after it."""
+    formula = None
+    at_end = _FORMULA_AT_END.search(title)
+    if at_end and at_end.start() > 0:
+        formula = at_end.group("formula")
+        title = title[: at_end.start()]
+    name = title.rstrip(" .:;,")
+    return _Found(name, start, start + len(name), formula)
+
+
+def _standalone_title(before: str) -> _Found | None:
+    """The line right before the block when it reads as a title: short, alone in its
+    paragraph (a blank line or nothing above it), no sentence-ending full stop."""
+    stripped = before.rstrip(" \t")
+    if not stripped.endswith("\n"):
+        return None  # the block starts mid-line: no title line right before it
+    body = stripped[:-1].rstrip("\r")
+    line_start = max(body.rfind("\n") + 1, 0)
+    line = body[line_start:]
+    above = body[:line_start]
+    if above.strip() and not re.search(r"\n[ \t\r]*\n[ \t\r]*$", above):
+        return None  # part of a longer paragraph
+    title = line.strip()
+    if not title or len(title) > _MAX_TITLE or title.endswith((".", ";")):
+        return None
+    if not re.search(r"[A-Za-z]{3}", title):
+        return None
+    return _titled(title, line_start + (len(line) - len(line.lstrip())))
