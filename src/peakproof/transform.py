@@ -100,9 +100,13 @@ class FastPatterns:
             f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
         )
         try:
-            self.one_signal = re.compile(f"(?:{pattern_of('SIGNAL')})|(?:{pattern_of('BARE_SHIFT')})")
+            whole = pattern_of("SIGNALS")
         except KeyError:  # the grammar without its fast path (used by tests)
             self.one_signal = None
+        else:
+            # SIGNALS is "(?:ONE){1,9999}": one signal is the repeated group itself
+            assert whole.startswith("(?:") and whole.endswith("){1,9999}"), whole[-20:]
+            self.one_signal = re.compile(whole[3 : -len("){1,9999}")])
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
         )
