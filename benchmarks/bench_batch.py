@@ -102,7 +102,8 @@ def measure(n_files: int, jobs: int, worker_name: str) -> dict:
     """One size, in this process: generate, run, report."""
     import resource
 
-    from peakproof.batch import BatchSummary, JsonLinesWriter, check_worker, export_worker, run_batch
+    from peakproof.batch import (BatchSummary, JsonLinesWriter, check_worker, export_worker,
+                                 run_batch)  # fmt: skip
 
     worker = check_worker if worker_name == "check" else export_worker
     with tempfile.TemporaryDirectory(prefix="peakproof-bench-") as tmp:
@@ -152,7 +153,8 @@ def main() -> int:
     results = []
     for n in args.sizes:
         done = subprocess.run([sys.executable, __file__, "--one", str(n), "--jobs", str(args.jobs),
-                               "--worker", args.worker], capture_output=True, text=True)  # fmt: skip
+                               "--worker", args.worker],
+                              capture_output=True, text=True)  # fmt: skip
         if done.returncode != 0:
             print(done.stderr, file=sys.stderr)
             return 1

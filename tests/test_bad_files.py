@@ -59,7 +59,7 @@ def assert_one_clear_error(path: Path, *words: str) -> str:
     assert status == 2, (status, err)
     assert out == ""
     line = lines[0]
-    assert line.startswith(f"peakproof: {path}: ") or line.startswith(f"peakproof: {path.name}: "), line
+    assert line.startswith((f"peakproof: {path}: ", f"peakproof: {path.name}: ")), line
     for word in words:
         assert word in line, line
     assert elapsed < SECONDS, f"took {elapsed:.1f} s"

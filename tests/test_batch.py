@@ -93,9 +93,11 @@ def test_explicit_file_with_any_extension_is_kept(tree):
 
 
 def test_missing_inputs_are_problems_not_errors(tree):
-    files, problems = expand_inputs([str(tree / "nope.txt"), str(tree / "*.zzz"), str(tree / "a.txt")])
+    inputs = [str(tree / "nope.txt"), str(tree / "*.zzz"), str(tree / "a.txt")]
+    files, problems = expand_inputs(inputs)
     assert rel(files, tree) == ["a.txt"]
-    assert [p.message for p in problems] == ["no such file or folder", "no file matches this pattern"]
+    messages = [p.message for p in problems]
+    assert messages == ["no such file or folder", "no file matches this pattern"]
 
 
 def test_empty_folder_is_reported(tmp_path):
@@ -213,7 +215,8 @@ def test_export_worker_records_per_spectrum_and_signal():
     assert spectra["records"][0]["compound"] == "1a" and spectra["records"][0]["nucleus"] == "1H"
     signals = export_worker(str(DEMO), per="signal")
     first = signals["records"][0]
-    assert first["shift"] == 7.97 and first["where"] == f"line {first['line']}, column {first['column']}"
+    assert first["shift"] == 7.97
+    assert first["where"] == f"line {first['line']}, column {first['column']}"
     assert len(signals["records"]) == sum(r["signal_count"] for r in spectra["records"])
 
 
@@ -250,7 +253,8 @@ def test_jsonl_per_finding():
     writer.write({"file": "c", "records": [{"nucleus": "1H"}]})
     lines = [json.loads(line) for line in stream.getvalue().splitlines()]
     assert lines == [{"file": "a", "rule": "r1"}, {"file": "a", "rule": "r2"},
-                     {"file": "b", "error": "cannot read"}, {"file": "c", "nucleus": "1H"}]  # fmt: skip
+                     {"file": "b", "error": "cannot read"},
+                     {"file": "c", "nucleus": "1H"}]  # fmt: skip
     with pytest.raises(ValueError):
         JsonLinesWriter(stream, per="block")
 
@@ -286,12 +290,13 @@ def test_summary_table():
                  "findings": [{"rule": "hrms-calcd", "severity": "error"},
                               {"rule": "j-order", "severity": "note"},
                               {"rule": "hrms-calcd", "severity": "error"}]})  # fmt: skip
-    summary.add({"file": "b.docx", "error": "b.docx: the document is password-protected. Remove it."})
+    locked = "b.docx: the document is password-protected. Remove it."
+    summary.add({"file": "b.docx", "error": locked})
     table = summary.table()
     assert "files      3 (1 read, 2 unreadable)" in table
     assert "compounds  2 (3 data blocks)" in table
     assert "findings   2 errors, 0 warnings, 1 note" in table
-    rows = [line.split() for line in table.splitlines() if line.startswith("  hrms") or line.startswith("  j-")]
+    rows = [line.split() for line in table.splitlines() if line.startswith(("  hrms", "  j-"))]
     assert rows == [["hrms-calcd", "error", "2"], ["j-order", "note", "1"]]
     assert "  b.docx: the document is password-protected. Remove it." in table
     assert summary.to_json()["by_severity"] == {"error": 2, "warning": 0, "note": 1}

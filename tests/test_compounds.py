@@ -35,7 +35,8 @@ def compounds(text: str) -> list[tuple[str | None, str | None, str | None]]:
         (f"Ethyl 4-cyanobenzoate (3a′)\n{H1}", ("3a′", None, "3a′")),
         (f"Ethyl 4-cyanobenzoate (S12)\n{H1}", ("S12", None, "S12")),
         # a Markdown heading without a label names the compound by its title
-        (f"## Ethyl 4-cyanobenzoate\n{H1}", ("Ethyl 4-cyanobenzoate", None, "Ethyl 4-cyanobenzoate")),
+        (f"## Ethyl 4-cyanobenzoate\n{H1}",
+         ("Ethyl 4-cyanobenzoate", None, "Ethyl 4-cyanobenzoate")),  # fmt: skip
         (f"## Ethyl 4-cyanobenzoate, C10H9NO2\n{H1}",
          ("Ethyl 4-cyanobenzoate", "C10H9NO2", "Ethyl 4-cyanobenzoate")),  # fmt: skip
         # "compound 7" in the text
@@ -62,13 +63,15 @@ def test_each_block_looks_only_at_the_text_after_the_previous_block():
 
 
 def test_nearest_heading_wins():
-    text = f"## General procedure A (Claisen acylation)\nStirred for 2 h.\n\n## Methyl ester (1a)\n{H1}"
+    text = ("## General procedure A (Claisen acylation)\nStirred for 2 h.\n\n"
+            f"## Methyl ester (1a)\n{H1}")
     assert compounds(text) == [("1a", None, "1a")]
 
 
 def test_formula_falls_back_to_elemental_analysis():
     text = (f"## Ethyl 4-cyanobenzoate (12)\n{H1[:-1]}; "
-            "Anal. Calcd for C10H9NO2: C, 68.57; H, 5.18; N, 8.00. Found: C, 68.50; H, 5.20; N, 7.95.")  # fmt: skip
+            "Anal. Calcd for C10H9NO2: C, 68.57; H, 5.18; N, 8.00. "
+            "Found: C, 68.50; H, 5.20; N, 7.95.")  # fmt: skip
     assert compounds(text) == [("12", "C10H9NO2", "12")]
 
 

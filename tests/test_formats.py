@@ -168,7 +168,8 @@ def finding_at(name: str, rule: str, compound: str):
     checker = pytest.importorskip("peakproof.checker")
     source, doc = parsed(name)
     block = block_of(doc, compound)
-    hits = [d for d in checker.check(doc) if d.rule == rule and block.span.start <= d.span.start < block.span.end]
+    inside = range(block.span.start, block.span.end)
+    hits = [d for d in checker.check(doc) if d.rule == rule and d.span.start in inside]
     assert len(hits) == 1, (rule, compound, hits)
     return source.locate(hits[0].span.start), doc.text[hits[0].span.start : hits[0].span.end]
 
@@ -183,7 +184,8 @@ def test_finding_positions_in_text_formats(name, rule, compound, context, value)
     located, _ = finding_at(name, rule, compound)
     lines = (EXAMPLES / name).read_text(encoding="utf-8").splitlines()
     line = lines[located.line - 1]
-    assert line[located.column - 1 :].startswith(value), line[located.column - 10 : located.column + 10]
+    column = located.column
+    assert line[column - 1 :].startswith(value), line[column - 10 : column + 10]
 
 
 @pytest.mark.parametrize("rule,compound,context,value", PLANTED)

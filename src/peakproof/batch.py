@@ -513,7 +513,7 @@ def add_arguments(parser) -> None:
     parser.add_argument("--no-recursive", dest="recursive", action="store_false",
                         help="do not look inside sub-folders of a folder argument")
     parser.add_argument("--no-progress", dest="progress", action="store_false",
-                        help="never draw the progress bar (it is drawn only on a terminal)")  # fmt: skip
+                        help="never draw the progress bar (drawn only on a terminal)")  # fmt: skip
 
 
 def run_files(inputs: Iterable[str], worker: Callable[[str], dict], *, jobs: int = 1,

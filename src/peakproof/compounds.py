@@ -88,7 +88,8 @@ def _compound_before(before: str) -> _Found | None:
         pass
     if sentence:
         formula = sentence.group("inner") or sentence.group("after")
-        return _Found(sentence.group("label"), sentence.start("label"), sentence.end("label"), formula)
+        label = sentence.group("label")
+        return _Found(label, sentence.start("label"), sentence.end("label"), formula)
     return _standalone_title(before)
 
 
