@@ -241,7 +241,9 @@ def test_upload_name_is_never_used_as_a_path(client, tmp_path):
     assert payload["name"] == "secret.txt"
     assert "SECRET" not in payload["text"] and "7.26" in payload["text"]
     traversal = {"file": (io.BytesIO(b"1H NMR \xce\xb4 7.26 (s, 1H)"), "..\\..\\windows\\x.md")}
-    assert client.post("/api/upload", data=traversal).get_json()["name"] == "x.md"
+    name = client.post("/api/upload", data=traversal).get_json()["name"]
+    # Werkzeug may already have flattened the name; either way no path component survives
+    assert name.endswith("x.md") and "/" not in name and "\\" not in name
 
 
 def test_uploads_stay_in_memory(client, monkeypatch):
