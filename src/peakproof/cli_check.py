@@ -37,6 +37,9 @@ def add_arguments(name, parser) -> None:
     parser.add_argument("--input-format", choices=("txt", "md", "tex", "docx", "pdf"), default=None,
                         help="read the files as this format, whatever their extension")
     parser.add_argument("--quiet", action="store_true", help="text output without excerpts")
+    from .batch import add_arguments as add_batch_arguments
+
+    add_batch_arguments(parser)
 
 
 def run(args) -> int:
@@ -125,6 +128,55 @@ def _settings(args, first_file: str):
     return config
 
 
+import re  # noqa: E402  (kept next to its only use)
+
+
+def _wants_batch(args) -> bool:
+    """Folders, globs, --jobs or --jsonl: stream file by file (constant memory, summary table)."""
+    import os
+
+    if args.jsonl or args.jobs != 1:
+        return True
+    return any(p != "-" and (os.path.isdir(p) or any(ch in p for ch in "*?[")) for p in args.files)
+
+
+def _batch_check(args, config) -> int:
+    from functools import partial
+
+    from .batch import check_worker, run_files
+    from .checker import at_or_above
+
+    worst = {"status": EXIT_OK}
+
+    def show(record):
+        if "error" in record:
+            print(f"peakproof: {record['error']}", file=sys.stderr)
+            return
+        for f in record.get("findings", ()):
+            where = f.get("where") or f"{f['line']}:{f['column']}"
+            m = re.match(r"^line (\d+), column (\d+)$", where)
+            if m:  # text formats keep the path:line:column convention
+                where = f"{m.group(1)}:{m.group(2)}"
+            if args.format == "text" and not args.jsonl == "-":
+                print(f"{record['file']}:{where}: {f['severity']} {f['rule']} {f['message']}")
+            if at_or_above(f["severity"], config.fail_on):
+                worst["status"] = EXIT_FINDINGS
+
+    out = None
+    if args.jsonl == "-":
+        out = sys.stdout
+    elif args.jsonl:
+        out = open(args.jsonl, "w", encoding="utf-8")
+    try:
+        summary = run_files(args.files, partial(check_worker, config=config), jobs=args.jobs,
+                            jsonl=out, per=args.jsonl_per, recursive=args.recursive,
+                            progress=args.progress, on_record=show)
+    finally:
+        if out is not None and out is not sys.stdout:
+            out.close()
+    return EXIT_USAGE if summary.unreadable_count else worst["status"]
+
+
 def _check(args) -> int:
     from . import __version__
     from .api import InputError, parse_path
@@ -139,6 +191,15 @@ def _check(args) -> int:
         return EXIT_USAGE
     for problem in config.problems:
         print(f"peakproof: {problem}", file=sys.stderr)
+    if _wants_batch(args):
+        if args.format == "text":
+            return _batch_check(args, config)
+        from .batch import expand_inputs  # json/sarif gather everything: expand, then go on
+
+        files, problems = expand_inputs(args.files, recursive=args.recursive)
+        for problem in problems:
+            print(f"peakproof: {problem.to_json().get('error', problem)}", file=sys.stderr)
+        args.files = files
     status = EXIT_OK
     reports = []
     documents = []
@@ -160,7 +221,7 @@ def _check(args) -> int:
             documents.append({"path": source.name, "findings": [d.to_json() for d in result.diagnostics],
                               "networks": result.networks})
         elif args.format == "text":
-            for line in finding_lines(source, result.diagnostics, show_source=not args.quiet):
+            for line in finding_lines(source, result.diagnostics, show_source=not args.quiet, document=doc):
                 print(line)
     if args.format == "json":
         payload = {"schema": "peakproof-check/1", "version": __version__, "fail_on": config.fail_on,

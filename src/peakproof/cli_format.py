@@ -32,6 +32,12 @@ def add_arguments(name, parser) -> None:
         parser.add_argument("--per", choices=("signal", "spectrum"), default="signal",
                             help="one record per NMR signal (default) or per spectrum")  # fmt: skip
         parser.add_argument("-o", "--output", metavar="FILE", help="write here instead of stdout")
+        parser.add_argument("--jobs", "-j", type=int, default=1, metavar="N",
+                            help="read files in N parallel processes (0: one per core)")
+        parser.add_argument("--no-recursive", dest="recursive", action="store_false",
+                            help="do not look inside sub-folders of a folder argument")
+        parser.add_argument("--no-progress", dest="progress", action="store_false",
+                            help="never draw the progress bar (drawn only on a terminal)")
         return
     parser.add_argument("--style", metavar="NAME",
                         help="output style (see 'peakproof styles'); default: the project's "
@@ -95,6 +101,19 @@ def _run_export(args) -> int:
     from .export import export
     from .safety import write_atomically
 
+    import os
+
+    batch = args.jobs != 1 or any(
+        p != "-" and (os.path.isdir(p) or any(ch in p for ch in "*?[")) for p in args.files)
+    if batch and args.to == "jsonl":
+        return _stream_export(args)
+    if batch:  # json and csv gather everything: expand folders and globs, then go on
+        from .batch import expand_inputs
+
+        files, problems = expand_inputs(args.files, recursive=args.recursive)
+        for problem in problems:
+            print(f"peakproof: {problem.to_json().get('error', problem)}", file=sys.stderr)
+        args.files = files
     docs, status = [], EXIT_OK
     for path in args.files:
         try:
@@ -110,6 +129,32 @@ def _run_export(args) -> int:
     else:
         sys.stdout.write(text)
     return status
+
+
+def _stream_export(args) -> int:
+    """One JSON line per record, file by file, in parallel: constant memory on large corpora."""
+    import json
+    from functools import partial
+
+    from .batch import export_worker, run_files
+
+    out = open(args.output, "w", encoding="utf-8") if args.output else sys.stdout
+
+    def emit(record):
+        if "error" in record:
+            print(f"peakproof: {record['error']}", file=sys.stderr)
+            return
+        for row in record.get("records", ()):
+            out.write(json.dumps({"file": record["file"], **row}, ensure_ascii=False) + "\n")
+        out.flush()
+
+    try:
+        summary = run_files(args.files, partial(export_worker, per=args.per), jobs=args.jobs,
+                            recursive=args.recursive, progress=args.progress, on_record=emit)
+    finally:
+        if out is not sys.stdout:
+            out.close()
+    return EXIT_USAGE if summary.unreadable_count else EXIT_OK
 
 
 # ---- format ------------------------------------------------------------------------------

@@ -32,7 +32,7 @@ def run(args) -> int:
             outputs.append(doc.to_json())
             continue
         print(summary(doc, source))
-        for line in diagnostic_lines(source, doc.diagnostics):
+        for line in diagnostic_lines(source, doc.diagnostics, document=doc):
             print(line)
     if args.format == "json":
         payload = outputs[0] if len(outputs) == 1 else {"documents": outputs}

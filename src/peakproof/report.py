@@ -5,9 +5,30 @@ from __future__ import annotations
 from .span import LineIndex
 
 
-def diagnostic_lines(source, diagnostics, *, show_source: bool = True):
-    """Yield printable lines for each diagnostic; positions in the original's own terms."""
+def _compound_finder(document):
+    """offset → "compound 12: " for the block holding it (empty when the block has no label)."""
+    if document is None:
+        return lambda offset: ""
+    from bisect import bisect_right
+
+    starts = [b.span.start for b in document.blocks]
+
+    def find(offset: int) -> str:
+        i = bisect_right(starts, offset) - 1
+        if i >= 0:
+            block = document.blocks[i]
+            if block.compound and offset <= block.span.end:
+                return f"compound {block.compound}: "
+        return ""
+
+    return find
+
+
+def diagnostic_lines(source, diagnostics, *, show_source: bool = True, document=None):
+    """Yield printable lines for each diagnostic; positions in the original's own terms.
+    With ``document``, messages start with the compound they concern ("compound 12: …")."""
     index = LineIndex(source.text)
+    compound_of = _compound_finder(document)
     for d in diagnostics:
         where = f"{d.span.line}:{d.span.column}"
         located = source.locate(d.span.start) if source.reader is not None else None
@@ -15,7 +36,7 @@ def diagnostic_lines(source, diagnostics, *, show_source: bool = True):
             where = located.describe()
         elif located is not None and getattr(located, "line", None):
             where = f"{located.line}:{located.column}"
-        yield f"{source.name}:{where}: {d.severity} {d.rule} {d.message}"
+        yield f"{source.name}:{where}: {d.severity} {d.rule} {compound_of(d.span.start)}{d.message}"
         if show_source:
             for line in index.caret(d.span).splitlines():
                 yield f"    {line}"
@@ -25,10 +46,10 @@ def diagnostic_lines(source, diagnostics, *, show_source: bool = True):
                 yield f"    hint: {d.hint}"
 
 
-def finding_lines(source, diagnostics, *, show_source: bool = True):
+def finding_lines(source, diagnostics, *, show_source: bool = True, document=None):
     """Like :func:`diagnostic_lines`, plus each finding's suggested fix when it has one."""
     diagnostics = list(diagnostics)
-    lines = diagnostic_lines(source, diagnostics, show_source=show_source)
+    lines = diagnostic_lines(source, diagnostics, show_source=show_source, document=document)
     if not show_source:
         yield from lines
         return
