@@ -136,3 +136,29 @@ def test_reader_error_is_a_value_error_with_a_readable_message():
     error = ReaderError("the PDF is encrypted", "Remove the password and try again.", "si.pdf")
     assert isinstance(error, ValueError)
     assert str(error) == "si.pdf: the PDF is encrypted. Remove the password and try again."
+
+
+def test_limits_from_the_environment(tmp_path):
+    """PEAKPROOF_MAX_FILE_MB and friends raise or lower a limit for every command."""
+    from peakproof.cli import main
+    from peakproof.readers.limits import MiB, Limits
+
+    limits = Limits.from_environment({"PEAKPROOF_MAX_FILE_MB": "1", "PEAKPROOF_MAX_PAGES": "3"})
+    assert (1 * MiB, 3) == (limits.max_bytes, limits.max_pages)
+    assert Limits() == Limits.from_environment({})
+    with pytest.raises(ReaderError):
+        Limits.from_environment({"PEAKPROOF_MAX_SECONDS": "soon"})
+    big = tmp_path / "big.txt"
+    big.write_bytes(b"1H NMR (400 MHz, CDCl3) \xce\xb4 7.26 (s, 1H).\n" + b" " * (2 * MiB))
+    import os
+
+    old = os.environ.get("PEAKPROOF_MAX_FILE_MB")
+    os.environ["PEAKPROOF_MAX_FILE_MB"] = "1"
+    try:
+        assert 2 == main(["parse", str(big)])
+    finally:
+        if old is None:
+            del os.environ["PEAKPROOF_MAX_FILE_MB"]
+        else:
+            os.environ["PEAKPROOF_MAX_FILE_MB"] = old
+    assert 0 == main(["parse", str(big)])

@@ -55,7 +55,7 @@ def read_document(path_or_bytes: str | os.PathLike | bytes, *, fmt: str | None =
     file extension, and for bytes or unknown extensions the content.  ``name`` is used in
     messages (default: the file name).  Raises :class:`ReaderError` for any unreadable file.
     """
-    limits = limits or Limits()
+    limits = limits or Limits.from_environment()
     if isinstance(path_or_bytes, (bytes, bytearray, memoryview)):
         data: bytes | None = bytes(path_or_bytes)
         path = None

@@ -32,16 +32,46 @@ class Limits:
     max_pages: int = 2000
     max_seconds: float = 60.0
 
+    @classmethod
+    def from_environment(cls, environ=None) -> "Limits":
+        """Defaults, overridden by ``PEAKPROOF_MAX_FILE_MB``, ``PEAKPROOF_MAX_UNCOMPRESSED_MB``,
+        ``PEAKPROOF_MAX_COMPRESSION_RATIO``, ``PEAKPROOF_MAX_PAGES`` and ``PEAKPROOF_MAX_SECONDS``
+        (so every command and the web page share one way of raising a limit)."""
+        environ = os.environ if environ is None else environ
+        changes = {}
+        for var, field, scale, kind in _ENVIRONMENT:
+            raw = environ.get(var)
+            if raw is None or not raw.strip():
+                continue
+            try:
+                value = kind(float(raw) * scale) if kind is int else float(raw) * scale
+            except ValueError:
+                raise ReaderError(f"{var}={raw!r} is not a number", f"Set {var} to a number, e.g. {var}=100.") from None
+            if value <= 0:
+                raise ReaderError(f"{var}={raw!r} must be positive", f"Set {var} to a positive number.")
+            changes[field] = value
+        return cls(**changes)
+
     def check_size(self, size: int, name: str = "") -> None:
         if size > self.max_bytes:
             raise ReaderError(
                 f"the file is {_mb(size)}, more than the {_mb(self.max_bytes)} limit",
-                "Split the document, or raise the limit (Limits(max_bytes=...)) if you trust it.",
+                "Split the document, or raise the limit if you trust it "
+                "(environment PEAKPROOF_MAX_FILE_MB, or Limits(max_bytes=...) from Python).",
                 name,
             )
 
     def deadline(self, name: str = "") -> "Deadline":
         return Deadline(self.max_seconds, name)
+
+
+_ENVIRONMENT = (
+    ("PEAKPROOF_MAX_FILE_MB", "max_bytes", MiB, int),
+    ("PEAKPROOF_MAX_UNCOMPRESSED_MB", "max_uncompressed_bytes", MiB, int),
+    ("PEAKPROOF_MAX_COMPRESSION_RATIO", "max_compression_ratio", 1, float),
+    ("PEAKPROOF_MAX_PAGES", "max_pages", 1, int),
+    ("PEAKPROOF_MAX_SECONDS", "max_seconds", 1, float),
+)
 
 
 class Deadline:
@@ -58,8 +88,8 @@ class Deadline:
         if time.monotonic() > self._stop:
             raise ReaderError(
                 f"reading took longer than {self._seconds:g} s ({doing})",
-                "The file may be unusually large or complex; raise Limits(max_seconds=...) "
-                "if you trust it.",
+                "The file may be unusually large or complex; raise the limit if you trust it "
+                "(environment PEAKPROOF_MAX_SECONDS, or Limits(max_seconds=...)).",
                 self._name,
             )
 
