@@ -93,6 +93,13 @@ class FastPatterns:
         self.bare_j = re.compile(f"({pattern_of('NUMBER')})(?:\\s?{pattern_of('HZ')})?")
         self.spec_head = re.compile(pattern_of("SPEC_HEAD"))
         num, hz = pattern_of("NUMBER"), pattern_of("HZ")
+        self.direct = re.compile(
+            f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?"
+            f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
+            f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
+            f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
+            f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
+        )
         self.common = re.compile(
             f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
             f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
@@ -232,16 +239,86 @@ class BlockBuilder(Transformer):
 
     def _fast_entries(self, tok: Token) -> list:
         """A SIGNALS token: consecutive fast-path signals, split with their own pattern."""
-        one = self.fast.one_signal
+        fast = self.fast
+        one = fast.one_signal
+        direct = fast.direct
         parsed = self.ctx.parsed  # match in context: the token's own lookaheads saw past its end
         pos = tok.start_pos
         end = tok.end_pos
         out = []
+        append = out.append
         while pos < end:
             m = one.match(parsed, pos)
-            out.append(self._fast_entry(Token("SIGNAL", m.group(0), start_pos=pos)))
-            pos = m.end()
+            stop = m.end()
+            d = direct.match(parsed, pos, stop)
+            if d is not None:
+                signal = self._direct_signal(d)
+                if signal is not None:
+                    append(signal)
+                    pos = stop
+                    continue
+            append(self._fast_entry(Token("SIGNAL", m.group(0), start_pos=pos)))
+            pos = stop
         return out
+
+    def _direct_signal(self, d):
+        """The commonest signal, ``7.26 (d, J = 8.4 Hz, 2H)``, straight from one match; None when
+        it needs the general path (a count "each", a "2 × d", an AB pattern)."""
+        written = d.group("m")
+        name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
+        count_text = d.group("c")
+        if multiplier != 1 or kind == "AB" or "each" in count_text:
+            return None
+        span = self.ctx.span
+        s1 = d.group("s")
+        s2 = d.group("s2")
+        s_start = d.start("s")
+        s_end = d.end("s2") if s2 is not None else d.end("s")
+        mult = Multiplicity(name=name, span=span(d.start("m"), d.end("m")), written=written,
+                            components=components, broad=broad, apparent=apparent, kind=kind,
+                            multiplier=1)
+        j1 = d.group("j1")
+        if j1 is None:
+            couplings = ()
+        else:
+            label = d.group("jl")
+            bonds, nuclei, lab = coupling_label(label)
+            label_start = d.start("jl") + len(label) - len(label.lstrip())
+            first = Coupling(value=number(j1), span=span(label_start, d.end("j1")),
+                             text=j1.replace("\u2212", "-").replace(",", "."),
+                             nuclei=nuclei, bonds=bonds, label=lab)
+            j2 = d.group("j2")
+            if j2 is None:
+                couplings = (first,)
+            else:
+                rest = [first]
+                for g in ("j2", "j3"):
+                    value = d.group(g)
+                    if value is None:
+                        break
+                    rest.append(Coupling(value=number(value), span=span(d.start(g), d.end(g)),
+                                         text=value.replace("\u2212", "-").replace(",", ".")))
+                couplings = tuple(rest)
+        cm = _COUNT.match(count_text if " " not in count_text else " ".join(count_text.split()))
+        n = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
+        d_start, d_end = d.start("open"), d.end()
+        return Signal(
+            span=span(s_start, d_end),
+            shift=number(s1) if s2 is None else None,
+            range=None if s2 is None else (number(s1), number(s2)),
+            shift_text=self.ctx.parsed[s_start:s_end],
+            shift_span=span(s_start, s_end),
+            multiplicity=mult,
+            couplings=couplings,
+            count=n,
+            count_nucleus=cm.group("nuc"),
+            count_text=count_text,
+            count_span=span(d.start("c"), d.end("c")),
+            assignment=None,
+            notes=(),
+            details_span=span(d_start, d_end),
+            group=0,
+        )
 
     def _fast_entry(self, tok: Token):
         """Split a SIGNAL or BARE_SHIFT token exactly as the token-by-token rules would."""
@@ -360,7 +437,14 @@ class BlockBuilder(Transformer):
         span = self.ctx.span
         pending: list = []  # entries without details, which a following "each" may claim
         group_id = 0
-        for shift, details in entries:
+        for entry in entries:
+            if type(entry) is Signal:  # built whole by the direct path: never claims bare shifts
+                for lone in pending:
+                    signals.append(self._bare_signal(lone))
+                pending = []
+                signals.append(entry)
+                continue
+            shift, details = entry
             if details is None:
                 pending.append(shift)
                 continue
