@@ -33,6 +33,21 @@ def has_element(formula, symbol: str) -> bool:
     return formula.element_count(symbol) > 0
 
 
+def block_has_element(block, ctx, symbol: str) -> bool:
+    """Whether the compound holds ``symbol``: in its formula, or evident from the block itself
+    (a spectrum of that element, or a coupling written with it, e.g. 19F NMR or J(C,F))."""
+    if has_element(ctx.formula, symbol):
+        return True
+    for spectrum in block.spectra:
+        if spectrum.element == symbol:
+            return True
+        for signal in spectrum.signals:
+            for c in signal.couplings:
+                if c.nuclei and symbol in {n.lstrip("0123456789") for n in c.nuclei}:
+                    return True
+    return False
+
+
 def signal_label(signal) -> str:
     """How a message names a signal: "δ 7.31 (d)"."""
     mult = f" ({signal.multiplicity.name})" if signal.multiplicity else ""

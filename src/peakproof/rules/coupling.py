@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from ..network import homonuclear
 from . import Rule
-from ._util import fmt, has_element, number_edit_span, signal_label
+from ._util import block_has_element, fmt, number_edit_span, signal_label
 
 
 def _unreported_partner_possible(spectrum, skip: int) -> bool:
@@ -32,7 +32,7 @@ def _hetero_match(block, spectrum, value: float, tol: float) -> bool:
 def _hetero_unlisted(block, ctx) -> bool:
     """F or P in the compound while no 19F/31P list gives J values: an H–X partner is expected."""
     for element, nucleus in (("F", "19F"), ("P", "31P")):
-        if has_element(ctx.formula, element) and not any(
+        if block_has_element(block, ctx, element) and not any(
             s.couplings for sp in block.spectra if sp.nucleus == nucleus for s in sp.signals
         ):
             return True
@@ -47,9 +47,18 @@ def _unmatched_homonuclear(block, ctx):
         net = ctx.network(spectrum)
         for k, signal in enumerate(spectrum.signals):
             for ci, c in enumerate(signal.couplings):
-                if not homonuclear(c, "H") or net.partners(k, ci):
+                if not homonuclear(c, "H") or net.partners(k, ci) or _within_ab(signal, ci):
                     continue
                 yield spectrum, k, signal, ci
+
+
+def _within_ab(signal, ci: int) -> bool:
+    """The J of an AB quartet joins its own two halves, so it needs no partner elsewhere."""
+    m = signal.multiplicity
+    if m is None or m.kind != "AB":
+        return False
+    c = signal.couplings[ci]
+    return ci == 0 or (c.label or "").upper() == "AB"
 
 
 def _nearest(spectrum, k: int, value: float):
@@ -176,7 +185,7 @@ class LargeHHCoupling(Rule):
     )
 
     def check(self, block, ctx):
-        if has_element(ctx.formula, "F") or has_element(ctx.formula, "P"):
+        if block_has_element(block, ctx, "F") or block_has_element(block, ctx, "P"):
             return
         for spectrum in block.spectra:
             if spectrum.nucleus != "1H":

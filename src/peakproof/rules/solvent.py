@@ -90,7 +90,11 @@ class SolventCoincidence(Rule):
                 # an OH/NH assigned near water gets the benefit of the doubt unless it sits on it
                 exchangeable = bool(s.assignment and EXCHANGEABLE.search(s.assignment))
                 window = tol if exchangeable else max(tol, 0.05)
-                if hit is None and water is not None and abs(s.shift - water.shift) <= window + 1e-9:
+                # a methyl-sized singlet or a group assigned to carbon (e.g. gem-dimethyl at 1.59
+                # in CDCl3) is the compound's own, not water
+                own_group = _looks_like_own_group(s) and not exchangeable
+                if hit is None and water is not None and not own_group and \
+                        abs(s.shift - water.shift) <= window + 1e-9:
                     if _compatible(s.multiplicity, "s"):
                         hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
                 if hit is None and spectrum.nucleus == "1H" and not _looks_like_own_group(s):
