@@ -110,7 +110,7 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
     grammar_path = GRAMMAR_DIR / "peaks.lark"
     grammar = grammar_path.read_text(encoding="utf-8")
     if not fast:
-        grammar = re.sub(r"\n\s*\| (?:SIGNALS|HEADER)\b[^\n]*", "", grammar)
+        grammar = re.sub(r"\n\s*\| (?:SIGNALS|HEADER|MS_FAST)\b[^\n]*", "", grammar)
     options.update(import_paths=[str(GRAMMAR_DIR)], source_path=str(grammar_path))
     try:
         parser = Lark(grammar, cache=str(cache), **options)

@@ -93,6 +93,14 @@ class FastPatterns:
         self.bare_j = re.compile(f"({pattern_of('NUMBER')})(?:\\s?{pattern_of('HZ')})?")
         self.spec_head = re.compile(pattern_of("SPEC_HEAD"))
         num, hz = pattern_of("NUMBER"), pattern_of("HZ")
+        try:
+            self.ms_start = re.compile(pattern_of("MS_START"))
+            self.ms_part = re.compile("|".join(
+                f"(?P<{name}>{pattern_of(name)})" for name in
+                ("FOUND", "ION", "CALCD", "MZ", "METHOD_PAREN", "ION_FORMULA", "NUMBER", "COLON", "MS_PUNCT")))
+            self.ms_gap = re.compile(pattern_of("WS").join(("(?:", ")?")))
+        except KeyError:
+            pass
         self.direct = re.compile(
             f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?"
             f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
@@ -668,8 +676,27 @@ class BlockBuilder(Transformer):
         return bisect_left(offsets, target)
 
     # ---- mass spectra ---------------------------------------------------------------------
+    def _split_ms(self, tok: Token) -> list[Token]:
+        """An MS_FAST token as the MS_START and part tokens the lexer would have given."""
+        fast = self.fast
+        text = self.ctx.parsed
+        m = fast.ms_start.match(text, tok.start_pos)
+        tokens = [Token("MS_START", m.group(0), start_pos=m.start(), end_pos=m.end())]
+        pos, end = m.end(), tok.end_pos
+        gap, part = fast.ms_gap, fast.ms_part
+        while pos < end:
+            pos = gap.match(text, pos, end).end()
+            if pos >= end:
+                break
+            p = part.match(text, pos, end)
+            tokens.append(Token(p.lastgroup, p.group(0), start_pos=pos, end_pos=p.end()))
+            pos = p.end()
+        return tokens
+
     def mass_spec(self, c):
         ctx = self.ctx
+        if c[0].type == "MS_FAST":
+            c = [*self._split_ms(c[0]), *c[1:]]
         head = c[0]
         method = None
         m = _METHOD_IN_HEAD.search(head.value)
