@@ -265,7 +265,7 @@ def _format_one(path, style, args, check, counts) -> int:
         return EXIT_OK
     edits = result.plan.edits if not fixes else _line_edits(text, final)
     try:
-        _write(path, source, text, edits, style, args, name)
+        _write(path, source, text, edits, style, args, name, fixed=bool(fixes))
     except UnsafeFormat as exc:
         counts["failed"] += 1
         counts["changed"] -= 1
@@ -308,7 +308,7 @@ def _line_edits(before: str, after: str) -> list[tuple[int, int, str]]:
     return edits
 
 
-def _write(path, source, text, edits, style, args, name) -> None:
+def _write(path, source, text, edits, style, args, name, fixed=False) -> None:
     from . import parse
     from .emit import apply_edits
     from .readers import read_document
@@ -324,6 +324,13 @@ def _write(path, source, text, edits, style, args, name) -> None:
         original = raw[3 if bom else 0 :].decode("utf-8")
     except UnicodeDecodeError:
         raise ValueError("it is not UTF-8; save it as UTF-8 and format it again") from None
+    if source.format in ("md", "tex"):
+        data, kept = _markup_source(source, original, text, edits, style, args, name, fixed)
+        if data is None:
+            return
+        data = (b"\xef\xbb\xbf" if bom else b"") + data
+        write_atomically(path, data)
+        return
     placed, kept = _place_edits(source, original, text, edits)
     for start, _, _ in kept:
         line = text.count("\n", 0, start) + 1
@@ -340,6 +347,37 @@ def _write(path, source, text, edits, style, args, name) -> None:
     if kept:
         verify(parse(text), read_back, style, round_numbers=args.round)
     write_atomically(path, data)
+
+
+def _markup_source(source, original, text, edits, style, args, name, fixed):
+    """A .md/.tex file's new bytes with the edits rendered in its own markup, proven safe.
+
+    Returns ``(bytes, kept)``, or ``(None, kept)`` when no edit could be placed.  Raises
+    :class:`UnsafeFormat` when the new source does not read back as the intended data.
+    """
+    from .markup import place_edits
+    from .safety import UnsafeFormat, verify_markup
+
+    try:
+        placement = place_edits(source.format, original, text, edits)
+    except ValueError as exc:
+        raise UnsafeFormat(f"the edits cannot be placed in the file ({exc})", "") from None
+    for (start, _, _), why in placement.kept:
+        line = text.count("\n", 0, start) + 1
+        print(f"{name}:{line}: kept: left as written, {why}", file=sys.stderr)
+    if not placement.source_edits:
+        return None, placement.kept
+    from .emit import apply_edits
+
+    new_source = apply_edits(original, placement.source_edits)
+    data = new_source.encode("utf-8")
+    if not fixed:
+        same_data_as = text
+    else:  # the fixes changed the data on purpose; they were checked on the plain text
+        same_data_as = None if placement.kept else apply_edits(text, edits)
+    verify_markup(source.format, text, data, placement, style, round_numbers=args.round,
+                  name=name, same_data_as=same_data_as)  # fmt: skip
+    return data, placement.kept
 
 
 def _place_edits(source, original: str, text: str, edits):

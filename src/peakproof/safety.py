@@ -248,3 +248,52 @@ def write_docx(path: str | os.PathLike, edits, expected_text: str) -> None:
         if os.path.exists(tmp):
             os.unlink(tmp)
         raise
+
+
+# ---- Markdown and LaTeX sources ------------------------------------------------------------
+def verify_markup(fmt: str, text: str, data: bytes, placement, style: type[Style], *,
+                  round_numbers: bool = False, name: str = "", same_data_as: str | None = None):  # fmt: skip
+    """Raise :class:`UnsafeFormat` unless the rewritten .md/.tex ``data`` is exactly what was meant.
+
+    ``text`` is the reader's text of the file before; ``placement`` (from
+    :func:`peakproof.markup.place_edits`) says which plain edits were placed and which kept.
+    The new file is read back with the same reader and must give the plain text with the
+    placed edits applied; its data must equal that text's data, and ``same_data_as``'s (the
+    text before, or after --fix the fixed text) under the allowed changes; a second format
+    pass may change only what was left as written.
+    """
+    from . import parse
+    from .emit import apply_edits
+    from .readers import read_document
+
+    expected = apply_edits(text, placement.accepted)
+    read_back = read_document(data, fmt=fmt, name=name).text
+    if read_back != expected:
+        raise UnsafeFormat("the rewritten file does not read back as the formatted text",
+                           _text_diff(expected, read_back, "intended", "read back"))  # fmt: skip
+    after = parse(read_back)
+    intended = parse(expected)
+    if after.data() != intended.data():
+        raise UnsafeFormat("the rewritten file's data differ from the formatted data",
+                           data_diff(intended.data(), after.data()))  # fmt: skip
+    if same_data_as is not None:
+        verify(parse(same_data_as), read_back, style, round_numbers=round_numbers)
+    again = plan_edits(after, style, round_numbers=round_numbers)
+    kept_ranges = [_moved_range(a, b, placement.accepted) for (a, b, _), _ in placement.kept]
+    stray = [(a, b, new) for a, b, new in again.edits
+             if not any(a < ke and b > ks or a == b == ks for ks, ke in kept_ranges)]  # fmt: skip
+    if stray:
+        raise UnsafeFormat("formatting the rewritten file again changes it (not idempotent)",
+                           _text_diff(read_back, apply_edits(read_back, stray),
+                                      "first pass", "second pass"))  # fmt: skip
+
+
+def _moved_range(start: int, end: int, edits) -> tuple[int, int]:
+    """``[start, end)`` of the text before ``edits`` (none inside it), in the text after them."""
+    shift = sum(len(new) - (b - a) for a, b, new in edits if b <= start)
+    return start + shift, end + shift
+
+
+def _text_diff(a: str, b: str, name_a: str, name_b: str) -> str:
+    return "\n".join(difflib.unified_diff(a.splitlines(), b.splitlines(), name_a, name_b,
+                                          lineterm=""))  # fmt: skip
