@@ -80,6 +80,12 @@ def _stripped_end(token: Token) -> int:
     return token.start_pos + len(token.value.rstrip())
 
 
+# (Lark turns the grammar's \uXXXX escapes into the characters themselves, hence the mixed quoting.)
+_BARE_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)\s*[,;]\s*(?=[\-" "\u2212" r"]?\d)"
+_LAST_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)(?=\s*(?:[;.,]|$))"
+_SIGNAL_TAIL = r"(?!\s*ppm)(?:\s*[,;]\s*(?=[\-" "\u2212" r"]?\d))?\s*"
+
+
 class FastPatterns:
     """The terminal patterns the fast-path tokens are made of, compiled for splitting them."""
 
@@ -122,6 +128,14 @@ class FastPatterns:
             # SIGNALS is "(?:ONE){1,9999}": one signal is the repeated group itself
             assert whole.startswith("(?:") and whole.endswith("){1,9999}"), whole[-20:]
             self.one_signal = re.compile(whole[3 : -len("){1,9999}")])
+        if self.one_signal is not None:
+            # Pieces of the SIGNALS terminal, written out here for speed; the assertion keeps
+            # them equal to the grammar's (tests build this class).
+            whole = pattern_of("SIGNALS")
+            for piece in (_BARE_REST, _LAST_REST, _SIGNAL_TAIL):
+                assert piece in whole, f"grammar/peaks.lark changed: update {piece!r} in transform.py"
+            self.bare = re.compile(f"({num})(?:{_BARE_REST}|{_LAST_REST})")
+            self.tail = re.compile(_SIGNAL_TAIL)
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
         )
@@ -248,25 +262,31 @@ class BlockBuilder(Transformer):
     def _fast_entries(self, tok: Token) -> list:
         """A SIGNALS token: consecutive fast-path signals, split with their own pattern."""
         fast = self.fast
-        one = fast.one_signal
-        direct = fast.direct
+        one, direct, bare, tail = fast.one_signal, fast.direct, fast.bare, fast.tail
         parsed = self.ctx.parsed  # match in context: the token's own lookaheads saw past its end
         pos = tok.start_pos
         end = tok.end_pos
         out = []
         append = out.append
+        span = self.ctx.span
         while pos < end:
-            m = one.match(parsed, pos)
-            stop = m.end()
-            d = direct.match(parsed, pos, stop)
+            b = bare.match(parsed, pos)
+            if b is not None:  # a shift of a plain list: the alternatives of SIGNALS are disjoint
+                value = b.group(1)
+                sp = span(pos, b.end(1))
+                append(Signal(span=sp, shift=number(value), shift_text=value, shift_span=sp))
+                pos = b.end()
+                continue
+            d = direct.match(parsed, pos)
             if d is not None:
                 signal = self._direct_signal(d)
                 if signal is not None:
                     append(signal)
-                    pos = stop
+                    pos = tail.match(parsed, d.end()).end()
                     continue
+            m = one.match(parsed, pos)
             append(self._fast_entry(Token("SIGNAL", m.group(0), start_pos=pos)))
-            pos = stop
+            pos = m.end()
         return out
 
     def _direct_signal(self, d):
