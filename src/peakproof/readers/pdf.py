@@ -12,7 +12,7 @@ characters are grouped by baseline, and smaller characters join the nearest line
 * running headers and footers are removed: among the first and last three lines of each
   page, a line found at the same place (k-th from the top or bottom) on at least two pages
   and half the pages (compared exactly, or with digits masked when it is short, as
-  "Page 3 of 9" is), and a bare page number;
+  "Page 3 of 9" is), and a bare page number; never a line holding a decimal number (data);
 * line breaks inside a paragraph stay "\\n" (the parser joins lines); a wider vertical gap
   gives a blank line.  Page breaks are line breaks.
 * damage that PDF text extraction commonly leaves (``¼`` for ``=``, ``d`` for ``δ``) is kept
@@ -39,6 +39,7 @@ LIGATURES = {"ﬀ": "ff", "ﬁ": "fi", "ﬂ": "fl", "ﬃ": "ffi", "ﬄ": "ffl", 
 _PAGE_NUMBER = re.compile(
     r"(?:page\s*)?[-–—]?\s*[Ss]?\d{1,4}\s*[-–—]?(?:\s*(?:of|/)\s*\d{1,4})?", re.IGNORECASE
 )
+_DECIMAL = re.compile(r"\d[.,]\d")
 _HYPHENS = "-\u2010\u00ad"
 _EDGE_LINES = 3  # how many lines at the top and bottom of a page may be headers/footers
 _SHORT_LINE = 40  # headers compared with digits masked only when at most this long
@@ -143,11 +144,16 @@ def _running_lines(pages: list[list[_Line]]) -> set[tuple]:
 
 
 def _strip_running(lines: list[_Line], running: set[tuple]) -> list[_Line]:
+    # a line with a decimal number is data (a shift list's tail such as "127.8, 60.8, 21.6."
+    # looks alike on many pages once digits are masked); running headers carry no decimals
     drop = {
         id(line)
         for line, edge, place in _edges(lines)
         if _PAGE_NUMBER.fullmatch(line.text.strip())
-        or any(key in running for key in _edge_keys(line, edge, place))
+        or (
+            not _DECIMAL.search(line.text)
+            and any(key in running for key in _edge_keys(line, edge, place))
+        )
     }
     return [line for line in lines if id(line) not in drop]
 
