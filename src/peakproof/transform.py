@@ -268,13 +268,11 @@ class BlockBuilder(Transformer):
         end = tok.end_pos
         out = []
         append = out.append
-        span = self.ctx.span
         while pos < end:
             b = bare.match(parsed, pos)
             if b is not None:  # a shift of a plain list: the alternatives of SIGNALS are disjoint
-                value = b.group(1)
-                sp = span(pos, b.end(1))
-                append(Signal(span=sp, shift=number(value), shift_text=value, shift_span=sp))
+                value = b.group(1)  # left as an entry: a following "(2 × d, 1H each)" may claim it
+                append(((number(value), None, value, pos, b.end(1)), None))
                 pos = b.end()
                 continue
             d = direct.match(parsed, pos)
