@@ -265,7 +265,7 @@ def _format_one(path, style, args, check, counts) -> int:
         return EXIT_OK
     edits = result.plan.edits if not fixes else _line_edits(text, final)
     try:
-        _write(path, source, text, edits, style, args, name, fixed=bool(fixes))
+        written = _write(path, source, text, edits, style, args, name, fixed=bool(fixes))
     except UnsafeFormat as exc:
         counts["failed"] += 1
         counts["changed"] -= 1
@@ -278,8 +278,11 @@ def _format_one(path, style, args, check, counts) -> int:
         print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
               file=sys.stderr)  # fmt: skip
         return EXIT_USAGE
+    if not written:
+        counts["changed"] -= 1
+        counts["unchanged"] += 1
     if not args.quiet:
-        print(f"reformatted {name}", file=sys.stderr)
+        print(f"reformatted {name}" if written else f"{name}: left as written", file=sys.stderr)
     return EXIT_OK
 
 
@@ -308,7 +311,8 @@ def _line_edits(before: str, after: str) -> list[tuple[int, int, str]]:
     return edits
 
 
-def _write(path, source, text, edits, style, args, name, fixed=False) -> None:
+def _write(path, source, text, edits, style, args, name, fixed=False) -> bool:
+    """Write the edits into the file in its own format; False when none could be placed."""
     from . import parse
     from .emit import apply_edits
     from .readers import read_document
@@ -316,7 +320,7 @@ def _write(path, source, text, edits, style, args, name, fixed=False) -> None:
 
     if source.format == "docx":
         write_docx(path, edits, apply_edits(text, edits))
-        return
+        return True
     with open(path, "rb") as handle:
         raw = handle.read()
     bom = raw.startswith(b"\xef\xbb\xbf")
@@ -327,10 +331,9 @@ def _write(path, source, text, edits, style, args, name, fixed=False) -> None:
     if source.format in ("md", "tex"):
         data, kept = _markup_source(source, original, text, edits, style, args, name, fixed)
         if data is None:
-            return
-        data = (b"\xef\xbb\xbf" if bom else b"") + data
-        write_atomically(path, data)
-        return
+            return False
+        write_atomically(path, (b"\xef\xbb\xbf" if bom else b"") + data)
+        return True
     placed, kept = _place_edits(source, original, text, edits)
     for start, _, _ in kept:
         line = text.count("\n", 0, start) + 1
@@ -347,6 +350,7 @@ def _write(path, source, text, edits, style, args, name, fixed=False) -> None:
     if kept:
         verify(parse(text), read_back, style, round_numbers=args.round)
     write_atomically(path, data)
+    return True
 
 
 def _markup_source(source, original, text, edits, style, args, name, fixed):
@@ -363,7 +367,8 @@ def _markup_source(source, original, text, edits, style, args, name, fixed):
     except ValueError as exc:
         raise UnsafeFormat(f"the edits cannot be placed in the file ({exc})", "") from None
     for (start, _, _), why in placement.kept:
-        line = text.count("\n", 0, start) + 1
+        where = source.locate(start)
+        line = where.line if where is not None else text.count("\n", 0, start) + 1
         print(f"{name}:{line}: kept: left as written, {why}", file=sys.stderr)
     if not placement.source_edits:
         return None, placement.kept

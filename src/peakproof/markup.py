@@ -269,9 +269,9 @@ def _cuts_cleanly(fmt: str, source: str, start: int, end: int) -> bool:
     """Does ``source[start:end]`` hold whole markup constructs only (balanced, no half commands)?"""
     piece = source[start:end]
     if fmt == "tex":
-        if start > 0 and re.search(r"(?<!\\)(?:\\\\)*\\[A-Za-z]*$", source[max(0, start - 40) : start]) \
-                and (source[start - 1] == "\\" or piece[:1].isalpha()):  # fmt: skip
-            return False
+        before = source[max(0, start - 40) : start]
+        if re.search(r"(?<!\\)(?:\\\\)*\\[A-Za-z]*$", before) or before.endswith(("^", "_")):
+            return False  # the piece would start inside a command, or be taken as its argument
         if re.search(r"(?<!\\)(?:\\\\)*\\[A-Za-z]*$", piece) and (
             piece.endswith("\\") or source[end : end + 1].isalpha()
         ):
@@ -326,10 +326,33 @@ def source_range(fmt: str, source: str, offsets, text_len: int, start: int, end:
     last = offsets(end - 1) + 1
     high = offsets(end) if end < text_len else len(source)
     for s in range(first, min(low, first) - 1, -1):
+        if not _transparent(fmt, source[s:first]):
+            break
         for e in range(last, max(high, last) + 1):
-            if _cuts_cleanly(fmt, source, s, e):
+            tail = source[offsets(end - 1) : e]
+            if _transparent(fmt, tail) and _cuts_cleanly(fmt, source, s, e):
                 return s, e
     return None
+
+
+# Markup the renderer writes itself: a range may be widened over it, never over other markup
+# (a \textbf{…} or **…** around the data is the author's and stays).
+_RENDERED_COMMANDS = {
+    "textsuperscript", "textsubscript", "textit", "emph", "ce", "SI", "qty", "mathrm", "delta",
+    "hertz", "mega", "textminus", "textendash", "textemdash", "textdegree", "texttimes", "times",
+    "circ", "pm", "cdot", "approx", "mu",
+}  # fmt: skip
+
+
+def _transparent(fmt: str, markup: str) -> bool:
+    if fmt == "tex":
+        from .readers.latex import GREEK
+
+        return all(name in _RENDERED_COMMANDS or name in GREEK
+                   for name in re.findall(r"\\([A-Za-z]+)", markup))  # fmt: skip
+    tags = re.findall(r"</?([A-Za-z][A-Za-z0-9]*)", markup)
+    return all(t.lower() in ("sup", "sub") for t in tags) and "**" not in markup \
+        and "__" not in markup  # fmt: skip
 
 
 @dataclass
