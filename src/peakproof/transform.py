@@ -37,7 +37,7 @@ from .vocabulary import (
 class Context:
     """Where the text being parsed sits in the document."""
 
-    __slots__ = ("base", "repaired", "index", "diagnostics", "text", "parsed")
+    __slots__ = ("base", "repaired", "index", "diagnostics", "text", "parsed", "span")
 
     def __init__(self, base: int, repaired: Repaired, index: LineIndex):
         self.base = base  # document offset of the parsed text's first original character
@@ -46,11 +46,24 @@ class Context:
         self.text = repaired.text
         self.parsed = repaired.text  # the string the parser is reading now
         self.diagnostics: list[Diagnostic] = []
+        self.span = self._plain_span(base, index) if repaired.offsets is None else self._mapped_span
 
-    def span(self, start: int, end: int) -> Span:
+    @staticmethod
+    def _plain_span(base: int, index: LineIndex):
+        """Span maker for an unrepaired block: offsets shift by ``base`` (the common, fast case)."""
+        new = object.__new__
+
+        def span(start: int, end: int) -> Span:
+            sp = new(Span)
+            sp.start = base + start
+            sp.end = base + end
+            sp._where = index
+            return sp
+
+        return span
+
+    def _mapped_span(self, start: int, end: int) -> Span:
         r = self.repaired
-        if r.offsets is None:
-            return self.index.span(self.base + start, self.base + end)
         return self.index.span(self.base + r.original(start), self.base + r.original_end(end))
 
     def note(self, rule: str, message: str, start: int, end: int, hint: str = "") -> None:
