@@ -208,7 +208,7 @@ def _rank(code: int) -> int:
 def _format_one(path, style, args, check, counts) -> int:
     from . import parse
     from .api import InputError, read_source
-    from .safety import UnsafeFormat, apply_fixes, checked_format
+    from .safety import UnsafeFormat, apply_fixes, checked_format, write_atomically
 
     try:
         source = read_source(path, fmt=args.input_format)
@@ -247,10 +247,30 @@ def _format_one(path, style, args, check, counts) -> int:
         for change in result.changes:
             print(change.line(name), file=sys.stderr)
     changed = final != text
+    rewritten = None  # a .md/.tex file's new bytes, in its own markup
+    if changed and path != "-" and source.format in ("md", "tex"):
+        try:
+            rewritten = _markup_bytes(path, source, text, result.plan.edits if not fixes
+                                      else _line_edits(text, final), style, args, name,
+                                      bool(fixes))  # fmt: skip
+        except UnsafeFormat as exc:
+            counts["failed"] += 1
+            print(f"peakproof: internal error: {name}: {exc.message}; nothing was written.",
+                  file=sys.stderr)  # fmt: skip
+            if exc.diff:
+                print(exc.diff, file=sys.stderr)
+            return EXIT_INTERNAL
+        except (OSError, ValueError) as exc:
+            print(f"peakproof: {name}: cannot rewrite the file ({exc}); nothing was written",
+                  file=sys.stderr)  # fmt: skip
+            return EXIT_USAGE
+        changed = rewritten[1] is not None
     counts["changed" if changed else "unchanged"] += 1
     if args.diff and changed:
+        before, after = (text, final) if rewritten is None else (
+            b.decode("utf-8-sig") for b in rewritten)  # fmt: skip
         sys.stdout.writelines(difflib.unified_diff(
-            text.splitlines(keepends=True), final.splitlines(keepends=True),
+            before.splitlines(keepends=True), after.splitlines(keepends=True),
             f"{name} (original)", f"{name} (formatted)"))  # fmt: skip
     if args.check or args.diff:
         if changed and args.check and not args.quiet:
@@ -262,6 +282,18 @@ def _format_one(path, style, args, check, counts) -> int:
         sys.stdout.write(final)
         return EXIT_OK
     if not changed:
+        if rewritten is not None and not args.quiet:
+            print(f"{name}: left as written", file=sys.stderr)
+        return EXIT_OK
+    if rewritten is not None:
+        try:
+            write_atomically(path, rewritten[1])
+        except OSError as exc:
+            print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
+                  file=sys.stderr)  # fmt: skip
+            return EXIT_USAGE
+        if not args.quiet:
+            print(f"reformatted {name}", file=sys.stderr)
         return EXIT_OK
     edits = result.plan.edits if not fixes else _line_edits(text, final)
     try:
@@ -328,12 +360,6 @@ def _write(path, source, text, edits, style, args, name, fixed=False) -> bool:
         original = raw[3 if bom else 0 :].decode("utf-8")
     except UnicodeDecodeError:
         raise ValueError("it is not UTF-8; save it as UTF-8 and format it again") from None
-    if source.format in ("md", "tex"):
-        data, kept = _markup_source(source, original, text, edits, style, args, name, fixed)
-        if data is None:
-            return False
-        write_atomically(path, (b"\xef\xbb\xbf" if bom else b"") + data)
-        return True
     placed, kept = _place_edits(source, original, text, edits)
     for start, _, _ in kept:
         line = text.count("\n", 0, start) + 1
@@ -351,6 +377,19 @@ def _write(path, source, text, edits, style, args, name, fixed=False) -> bool:
         verify(parse(text), read_back, style, round_numbers=args.round)
     write_atomically(path, data)
     return True
+
+
+def _markup_bytes(path, source, text, edits, style, args, name, fixed):
+    """``(the file's bytes, its new bytes or None when no edit could be placed)``."""
+    with open(path, "rb") as handle:
+        raw = handle.read()
+    bom = raw.startswith(b"\xef\xbb\xbf")
+    try:
+        original = raw[3 if bom else 0 :].decode("utf-8")
+    except UnicodeDecodeError:
+        raise ValueError("it is not UTF-8; save it as UTF-8 and format it again") from None
+    data, _ = _markup_source(source, original, text, edits, style, args, name, fixed)
+    return raw, None if data is None else (b"\xef\xbb\xbf" if bom else b"") + data
 
 
 def _markup_source(source, original, text, edits, style, args, name, fixed):

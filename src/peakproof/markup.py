@@ -237,7 +237,9 @@ def _escape(text: str, conv: Conventions) -> str:
     out = []
     for i, ch in enumerate(text):
         nxt = text[i + 1 : i + 2]
-        if ch in "*_`\\":
+        if ch == "`":
+            out.append("&#96;")  # code spans are read before escapes: \\` would open one
+        elif ch in "*_\\":
             out.append("\\" + ch)
         elif ch == "[" and conv.escape_brackets:
             out.append("\\[")
