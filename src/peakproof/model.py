@@ -162,7 +162,7 @@ class Signal:
         )
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
 class Spectrum:
     """One NMR spectrum's header and signal list."""
 
@@ -213,7 +213,7 @@ class Spectrum:
         )
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
 class MassSpec:
     """A high-resolution mass-spectrometry record."""
 
@@ -245,7 +245,7 @@ class MassSpec:
         return (self.method, self.ion, self.formula, self.calcd_text, self.found_text)
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
 class ElementalAnalysis:
     """``Anal. Calcd for C10H12O2: C, 73.15; H, 7.37. Found: C, 73.02; H, 7.41.``"""
 
@@ -269,7 +269,7 @@ class ElementalAnalysis:
         return (self.formula, self.calcd, self.found)
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
 class OtherItem:
     """A non-NMR item of the paragraph (IR, mp, Rf, yield, rotation…), kept as text."""
 
@@ -284,7 +284,7 @@ class OtherItem:
         return (self.kind, " ".join(self.text.split()))
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
 class Block:
     """One characterization paragraph (usually one compound)."""
 
@@ -331,7 +331,7 @@ class Block:
         )
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
 class Document:
     """A whole text with its blocks and the diagnostics met while reading it."""
 

@@ -121,8 +121,22 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
 
 
 # ---- public entry points ---------------------------------------------------------------------
-def parse(text: str, *, path: str | None = None, fast: bool = True) -> Document:
-    """Read every data block in ``text``.  Never raises on bad input: problems become diagnostics."""
+#: Below this many characters the fast-path tokens cost more to compile than they save.
+FAST_PATH_MIN_CHARS = 20_000
+
+
+def _choose_fast(text: str, fast: bool | None) -> bool:
+    if fast is not None:
+        return fast
+    pairs = getattr(_PER_THREAD, "pairs", None) or {}
+    return True in pairs or len(text) >= FAST_PATH_MIN_CHARS
+
+
+def parse(text: str, *, path: str | None = None, fast: bool | None = None) -> Document:
+    """Read every data block in ``text``.  Never raises on bad input: problems become diagnostics.
+
+    ``fast`` picks the grammar with or without its fast-path tokens (both read the same model;
+    by default the fast one for long texts, where compiling its larger patterns pays off)."""
     if not isinstance(text, str):
         raise TypeError(f"parse() takes text (str), not {type(text).__name__}")
     index = LineIndex(text)
@@ -135,10 +149,11 @@ def parse(text: str, *, path: str | None = None, fast: bool = True) -> Document:
     return Document(text=text, blocks=tuple(blocks), diagnostics=tuple(diagnostics), path=path)
 
 
-def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool = True):
+def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool | None = None):
     """Yield ``(block, diagnostics)`` one block at a time, so a caller that does not keep them
     reads a large text in constant memory (compound labels are not attached here)."""
     index = index or LineIndex(text)
+    fast = _choose_fast(text, fast)
     view = normalize_for_locating(text)
     # The model has no reference cycles: pausing the cyclic collector while building tens of
     # thousands of small objects saves its repeated full scans.
