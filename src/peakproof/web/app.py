@@ -181,7 +181,12 @@ def _text_field(body: dict[str, Any]) -> str:
     text = body.get("text")
     if not isinstance(text, str):
         raise BadInput("'text' is missing: paste the characterization data as a string")
-    return text
+    # JSON may carry lone UTF-16 surrogates ("\ud800") that no UTF-8 reply can hold; one
+    # replacement character each keeps every offset (and so every highlight) in place
+    return _LONE_SURROGATE.sub("\ufffd", text)
+
+
+_LONE_SURROGATE = re.compile("[\ud800-\udfff]")
 
 
 # ---- the engine, shaped for the page ----------------------------------------------------
@@ -415,6 +420,9 @@ def plot_png(text: str, block_index: int) -> bytes:
     from ..api import Source, parse_source
 
     doc = parse_source(Source(text=text, name="pasted text", format="txt"))
+    if not doc.blocks:
+        raise BadInput("no NMR data found in the text: paste a block such as "
+                       "'1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), …'")
     if block_index >= len(doc.blocks):
         raise BadInput(f"there is no compound number {block_index}: the text has "
                        f"{len(doc.blocks)} data block(s)")  # fmt: skip
