@@ -180,8 +180,10 @@ def test_cases_cover_both_formats():
 
 
 # ---- safety ------------------------------------------------------------------------------
-MESSY_TEX = ("\\begin{document}\nEster 3a.\n$^{1}$H NMR (400 MHz, CDCl$_3$) $\\delta$ 1.25 "
-             "(t, \\textit{J}=7.1 Hz, 3H), 4.12 (q, \\textit{J} = 7.1 Hz, 2H).\n\\end{document}\n")  # fmt: skip
+MESSY_TEX = (
+    "\\begin{document}\nEster 3a.\n$^{1}$H NMR (400 MHz, CDCl$_3$) $\\delta$ 1.25 "
+    "(t, \\textit{J}=7.1 Hz, 3H), 4.12 (q, \\textit{J} = 7.1 Hz, 2H).\n\\end{document}\n"
+)
 
 
 def test_a_block_that_cannot_be_rendered_is_kept_and_listed(tmp_path, monkeypatch, capsys):

@@ -15,7 +15,7 @@ from __future__ import annotations
 import html
 import re
 from collections import Counter
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 
 FORMATS = ("md", "tex")
 
@@ -189,7 +189,8 @@ def _token(m: re.Match, conv: Conventions) -> str:
     whole = m.group()
     if m.group("header"):
         def label(part: str) -> str:
-            return _MASS_NUMBER.sub(lambda n: conv.superscript.format(n.group(1)) + n.group(2), part)
+            return _MASS_NUMBER.sub(
+                lambda n: conv.superscript.format(n.group(1)) + n.group(2), part)
 
         nucleus, _, decoupled = whole.partition("{")
         if not decoupled:

@@ -251,8 +251,10 @@ def write_docx(path: str | os.PathLike, edits, expected_text: str) -> None:
 
 
 # ---- Markdown and LaTeX sources ------------------------------------------------------------
-def verify_markup(fmt: str, text: str, data: bytes, placement, style: type[Style], *,
-                  round_numbers: bool = False, name: str = "", same_data_as: str | None = None):  # fmt: skip
+def verify_markup(
+    fmt: str, text: str, data: bytes, placement, style: type[Style], *,
+    round_numbers: bool = False, name: str = "", same_data_as: str | None = None,
+) -> None:  # fmt: skip
     """Raise :class:`UnsafeFormat` unless the rewritten .md/.tex ``data`` is exactly what was meant.
 
     ``text`` is the reader's text of the file before; ``placement`` (from
