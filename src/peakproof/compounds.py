@@ -39,21 +39,25 @@ _LABEL_IN_SENTENCE = re.compile(
 _MAX_TITLE = 160
 
 
+def compound_of(text: str, floor: int, start: int, index: LineIndex, analyses=()):
+    """``(compound, compound_span, formula)`` for a block starting at ``start``, from the text
+    since ``floor`` (the previous block's end); the formula falls back to the block's EA."""
+    found = _compound_before(text[floor:start])
+    formula = found.formula if found else None
+    if formula is None and analyses and analyses[0].formula:
+        formula = analyses[0].formula
+    if found is None:
+        return None, None, formula
+    return found.name, index.span(floor + found.start, floor + found.end), formula
+
+
 def attach_compounds(text: str, blocks: list[Block], index: LineIndex) -> list[Block]:
     """Fill ``compound`` (label or name) and ``formula`` for each block from the text before it."""
     out = []
     floor = 0
     for block in blocks:
-        before = text[floor : block.span.start]
-        found = _compound_before(before)
-        formula = found.formula if found else None
-        if formula is None and block.analyses and block.analyses[0].formula:
-            formula = block.analyses[0].formula
-        if found is not None:
-            c_span = index.span(floor + found.start, floor + found.end)
-            out.append(replace(block, compound=found.name, compound_span=c_span, formula=formula))
-        else:
-            out.append(replace(block, formula=formula))
+        compound, c_span, formula = compound_of(text, floor, block.span.start, index, block.analyses)
+        out.append(replace(block, compound=compound, compound_span=c_span, formula=formula))
         floor = block.span.end
     return out
 

@@ -13,7 +13,7 @@ from pathlib import Path
 from lark import Lark
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
-from .compounds import attach_compounds
+from .compounds import compound_of
 from .locate import CORE_START, OTHER_START, iter_locate
 from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
 from .repair import Repaired, normalize_for_locating, repair
@@ -145,13 +145,12 @@ def parse(text: str, *, path: str | None = None, fast: bool | None = None) -> Do
     for block, diags in iter_blocks(text, index=index, fast=fast):
         blocks.append(block)
         diagnostics.extend(diags)
-    blocks = attach_compounds(text, blocks, index)
     return Document(text=text, blocks=tuple(blocks), diagnostics=tuple(diagnostics), path=path)
 
 
 def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool | None = None):
     """Yield ``(block, diagnostics)`` one block at a time, so a caller that does not keep them
-    reads a large text in constant memory (compound labels are not attached here)."""
+    reads a large text in constant memory."""
     index = index or LineIndex(text)
     fast = _choose_fast(text, fast)
     view = normalize_for_locating(text)
@@ -160,22 +159,21 @@ def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool | None 
     gc_was_enabled = gc.isenabled()
     gc.disable()
     try:
+        floor = 0
         for i, located in enumerate(iter_locate(view.text)):
             start, end = view.original(located.start), view.original_end(located.end)
-            block, diags = parse_block(text, start, end, index, fast=fast)
-            yield _with(block, index=i, suppressed=located.suppressed), diags
+            block, diags = parse_block(text, start, end, index, fast=fast, number=i,
+                                       suppressed=located.suppressed, floor=floor)
+            floor = end
+            yield block, diags
     finally:
         if gc_was_enabled:
             gc.enable()
 
 
-def _with(block: Block, **changes) -> Block:
-    from dataclasses import replace
-
-    return replace(block, **changes)
-
-
-def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool = True) -> tuple[Block, list[Diagnostic]]:
+def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool = True,
+                number: int = 0, suppressed: tuple[str, ...] = (), floor: int | None = None,
+                ) -> tuple[Block, list[Diagnostic]]:
     """Parse ``text[start:end]``; on a syntax error, read it piece by piece."""
     builder, parser = _builder_and_parser(fast)
     raw = text[start:end]
@@ -199,7 +197,13 @@ def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool
         ctx.diagnostics.append(_internal(index, start, end, exc))
     finally:
         builder.ctx = None
-    return _block(index.span(start, end), raw, items), ctx.diagnostics
+    block = _block(index.span(start, end), raw, items, number, suppressed)
+    if floor is not None:  # the compound: its label or heading in the text since the last block
+        compound, c_span, formula = compound_of(text, floor, start, index, block.analyses)
+        block = Block(span=block.span, text=raw, spectra=block.spectra, mass_spec=block.mass_spec,
+                      analyses=block.analyses, others=block.others, compound=compound,
+                      compound_span=c_span, formula=formula, index=number, suppressed=suppressed)
+    return block, ctx.diagnostics
 
 
 def _internal(index, start, end, exc) -> Diagnostic:
@@ -210,7 +214,7 @@ def _internal(index, start, end, exc) -> Diagnostic:
     )
 
 
-def _block(span, raw, items) -> Block:
+def _block(span, raw, items, number=0, suppressed=()) -> Block:
     spectra, ms, ea, others = [], [], [], []
     for item in items:
         if isinstance(item, Spectrum):
@@ -222,7 +226,7 @@ def _block(span, raw, items) -> Block:
         elif isinstance(item, OtherItem):
             others.append(item)
     return Block(span=span, text=raw, spectra=tuple(spectra), mass_spec=tuple(ms),
-                 analyses=tuple(ea), others=tuple(others))
+                 analyses=tuple(ea), others=tuple(others), index=number, suppressed=suppressed)
 
 
 # ---- recovery --------------------------------------------------------------------------------
