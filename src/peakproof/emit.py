@@ -216,6 +216,8 @@ class Emitter:
         else:
             letters = "".join(lex[c] for c in mult.components) if mult.components else lex.get(
                 mult.name.split()[-1], mult.name.split()[-1])  # fmt: skip
+            if mult.components and mult.kind == "multiplet":  # "dm": resolved letters, then m
+                letters += lex.get("m", "m")
             body = (lex["broad"] if mult.broad else "") + (lex["apparent"] if mult.apparent else "")
             body += letters
         if mult.multiplier > 1:

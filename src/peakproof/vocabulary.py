@@ -97,6 +97,10 @@ def multiplicity_parts(written: str) -> tuple[str, tuple[str, ...], bool, bool, 
             return "br", (), True, apparent, "broad", multiplier
         if base in ("s", "m"):
             components = ()
+        elif len(base) > 1 and base.endswith("m"):  # "dm", "tm": resolved letters, then a multiplet
+            components = tuple(_LETTER[c] for c in _LETTERS_RE.findall(base[:-1]))
+            name = ("br " if broad else "") + ("app " if apparent else "") + "".join(components) + "m"
+            return name, components, broad, apparent, "multiplet", multiplier
         else:
             components = tuple(_LETTER[c] for c in _LETTERS_RE.findall(base))
             base = "".join(components)

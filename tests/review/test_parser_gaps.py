@@ -1,4 +1,4 @@
-"""Readings the parser gets wrong, found in review; for the parser's owner to fix.
+"""Readings the parser once got wrong, found in review (now regression tests).
 
 Each test states the input as an author writes it and the reading a chemist means."""
 
@@ -14,8 +14,6 @@ def only_signals(text: str):
     return [s for b in doc.blocks for sp in b.spectra for s in sp.signals], doc
 
 
-@pytest.mark.xfail(strict=True, reason="'dm' (doublet of multiplets) is read as an assignment, "
-                   "leaving the signal without a multiplicity")  # fmt: skip
 def test_doublet_of_multiplets():
     # "dm" = a doublet whose lines are further split unresolved (common practice, e.g. CHF
     # protons with 2J(H,F) ≈ 48 Hz)
@@ -26,15 +24,12 @@ def test_doublet_of_multiplets():
     assert first.j_hz == (48.6,) and first.count == 1
 
 
-@pytest.mark.xfail(strict=True, reason="'tm' (triplet of multiplets) is read as an assignment")
 def test_triplet_of_multiplets():
     signals, _ = only_signals("1H NMR (400 MHz, CDCl3) δ 2.10 (tm, J = 7.0 Hz, 2H).")
     assert signals[0].multiplicity is not None and signals[0].multiplicity.name == "tm"
     assert signals[0].assignment is None
 
 
-@pytest.mark.xfail(strict=True, reason="two shifts joined by 'and' before one ABq detail group "
-                   "are a syntax error; the whole signal is skipped")  # fmt: skip
 def test_abq_with_both_shifts_written():
     # an AB quartet reported by its two centres, common for diastereotopic CH2 (common practice)
     signals, doc = only_signals("1H NMR (400 MHz, CDCl3) δ 3.52 and 3.40 (ABq, JAB = 11.2 Hz, 2H).")
