@@ -27,7 +27,7 @@ def add_arguments(name, parser) -> None:
     parser.add_argument("--input-format", choices=("txt", "md", "tex", "docx", "pdf"), default=None,
                         help="read the files as this format, whatever their extension")  # fmt: skip
     if name == "export":
-        parser.add_argument("--to", choices=("json", "jsonl", "csv"), default="json",
+        parser.add_argument("--to", "--format", dest="to", choices=("json", "jsonl", "csv"), default="json",
                             help="json: the parse shape; jsonl/csv: one record per line")  # fmt: skip
         parser.add_argument("--per", choices=("signal", "spectrum"), default="signal",
                             help="one record per NMR signal (default) or per spectrum")  # fmt: skip
