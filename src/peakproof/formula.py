@@ -13,6 +13,8 @@ labelled compound has one spelling.  A few group abbreviations that are not elem
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 import re
 from collections.abc import Iterable, Mapping
 from pathlib import Path
@@ -96,6 +98,17 @@ def isotope_parts(symbol: str) -> tuple[str, int | None]:
     return symbol, None
 
 
+@lru_cache(maxsize=4096)
+def _element_totals(key) -> dict[str, int | float]:
+    """Element → atoms with isotopes folded in, for a formula's (counts, charge) key (the checker
+    asks the same formula many times)."""
+    totals: dict[str, float] = {}
+    for symbol, number in key[0]:
+        parent = isotope_parts(symbol)[0]
+        totals[parent] = totals.get(parent, 0) + number
+    return {element: _number(total) for element, total in totals.items()}
+
+
 class Formula:
     """An immutable elemental composition with a charge.
 
@@ -159,13 +172,9 @@ class Formula:
 
     def element_count(self, element: str, include_isotopes: bool = True) -> int | float:
         """Atoms of ``element``; with ``include_isotopes`` H counts D and T, C counts 13C."""
-        total = self._counts.get(element, 0)
-        if include_isotopes:
-            for symbol, number in self._counts.items():
-                parent, mass_number = isotope_parts(symbol)
-                if mass_number is not None and parent == element:
-                    total += number
-        return _number(total)
+        if not include_isotopes:
+            return _number(self._counts.get(element, 0))
+        return _element_totals(self._key).get(element, 0)
 
     def elements(self) -> tuple[str, ...]:
         """Elements present (isotopes folded into their element), in Hill order."""

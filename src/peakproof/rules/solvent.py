@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from bisect import bisect_left, bisect_right
+
 import functools
 import re
 
@@ -79,6 +81,10 @@ class SolventCoincidence(Rule):
             residual, refs, water, by_compound = tables
             tol = ctx.config.solvent_tolerance_1h if spectrum.nucleus == "1H" else ctx.config.solvent_tolerance_13c
             flagged: set[int] = set()
+            # single-group impurities that are singlets, by shift (for a bisect per signal)
+            lone = sorted(((groups[0].shift, compound, groups[0]) for compound, groups in by_compound.items()
+                           if len(groups) == 1 and groups[0].multiplicity == "s"), key=lambda t: t[0])
+            lone_shifts = [t[0] for t in lone]
             for k, s in enumerate(spectrum.signals):
                 if not _single_shift(s):
                     continue
@@ -97,23 +103,30 @@ class SolventCoincidence(Rule):
                         abs(s.shift - water.shift) <= window + 1e-9:
                     if _compatible(s.multiplicity, "s"):
                         hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
-                if hit is None and spectrum.nucleus == "1H" and not _looks_like_own_group(s):
-                    for compound, groups in by_compound.items():
-                        if len(groups) == 1 and abs(s.shift - groups[0].shift) <= 0.01 + 1e-9 and \
-                                s.multiplicity is not None and s.multiplicity.name == "s" == groups[0].multiplicity:
-                            hit = (compound, f"{compound} {fmt(groups[0].shift, 2)}", groups[0].shift)
-                            break
+                if hit is None and spectrum.nucleus == "1H" and s.multiplicity is not None and \
+                        s.multiplicity.name == "s" and not _looks_like_own_group(s):
+                    lo = bisect_left(lone_shifts, s.shift - 0.01 - 1e-9)
+                    hi = bisect_right(lone_shifts, s.shift + 0.01 + 1e-9)
+                    if lo < hi:  # the nearest tabulated singlet within 0.01 ppm
+                        shift, compound, _ = min(lone[lo:hi], key=lambda t: abs(t[0] - s.shift))
+                        hit = (compound, f"{compound} {fmt(shift, 2)}", shift)
                 if hit is not None:
                     flagged.add(k)
                     yield self._hit(s, hit[0], hit[1], hit[2], spectrum.solvent_normalized)
-            # several-group impurities: every group listed (within tolerance, compatible letters)
+            # several-group impurities: every group listed (within tolerance, compatible letters);
+            # the listed shifts are sorted once so each group looks only at its neighbours
+            single = sorted((s.shift, k) for k, s in enumerate(spectrum.signals) if _single_shift(s))
+            shifts = [x for x, _ in single]
+            signals = spectrum.signals
             for compound, groups in by_compound.items():
                 if len(groups) < 2:
                     continue
                 matched = []
                 for g in groups:
-                    k = next((k for k, s in enumerate(spectrum.signals) if _single_shift(s) and k not in flagged
-                              and abs(s.shift - g.shift) <= tol + 1e-9 and _compatible(s.multiplicity, g.multiplicity)), None)
+                    lo = bisect_left(shifts, g.shift - tol - 1e-9)
+                    hi = bisect_right(shifts, g.shift + tol + 1e-9)
+                    k = min((single[i][1] for i in range(lo, hi) if single[i][1] not in flagged
+                             and _compatible(signals[single[i][1]].multiplicity, g.multiplicity)), default=None)
                     if k is None:
                         break
                     matched.append((k, g))
