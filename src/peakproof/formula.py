@@ -325,12 +325,25 @@ def _expected_text(names: Iterable[str]) -> str:
     return "expected " + ", ".join(wanted[:-1]) + " or " + wanted[-1]
 
 
+_SIMPLE_FORMULA = re.compile(r"(?:[A-Z][a-z]?\d*)+")
+_ELEMENT_COUNT = re.compile(r"([A-Z][a-z]?)(\d*)")
+
+
 def parse_formula(text: str) -> Formula:
     """Read a molecular formula; raises :class:`FormulaError` for anything unreadable."""
     if not isinstance(text, str):
         raise FormulaError(f"a formula must be text, not {type(text).__name__}")
     if not text.strip():
         raise FormulaError("empty formula: write one such as C12H14O3Na", text, 0)
+    simple = _SIMPLE_FORMULA.fullmatch(text)
+    if simple is not None:  # "C12H14O3Na": element and count pairs only, read without the parser
+        counts: dict[str, int] = {}
+        for symbol, digits in _ELEMENT_COUNT.findall(text):
+            if symbol not in ELEMENT_SYMBOLS or symbol in ("D", "T") or digits.startswith("0"):
+                break  # unknown symbols, isotopes, zero counts: the grammar reads (or explains) it
+            counts[symbol] = counts.get(symbol, 0) + (int(digits) if digits else 1)
+        else:
+            return Formula(counts, 0, text, False)
     from lark.exceptions import LarkError, UnexpectedCharacters, UnexpectedInput, UnexpectedToken
 
     try:

@@ -9,6 +9,7 @@ is what "the same data" means for round trips and the formatter's safety check.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Any
 
 from .span import Diagnostic, Span
@@ -125,12 +126,7 @@ class Signal:
 
     @property
     def decimals(self) -> int:
-        first = self.shift_text.replace("−", "-")
-        for sep in ("–", "—", " to ", "-"):
-            if sep in first[1:]:
-                first = first[: first.index(sep, 1)]
-                break
-        return _decimals(first)
+        return _shift_decimals(self.shift_text)
 
     def to_json(self) -> dict[str, Any]:
         return {
@@ -350,6 +346,17 @@ class Document:
 
     def data(self) -> tuple:
         return tuple(b.data() for b in self.blocks)
+
+
+@lru_cache(maxsize=4096)
+def _shift_decimals(shift_text: str) -> int:
+    """Decimals of a written shift or of a range's first bound."""
+    first = shift_text.replace("−", "-")
+    for sep in ("–", "—", " to ", "-"):
+        if sep in first[1:]:
+            first = first[: first.index(sep, 1)]
+            break
+    return _decimals(first)
 
 
 def _decimals(number_text: str) -> int:
