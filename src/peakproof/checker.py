@@ -8,6 +8,8 @@ severity overrides come from :class:`~peakproof.config.Config`.
 
 from __future__ import annotations
 
+import gc
+
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -37,6 +39,18 @@ def check(document, config: Config | None = None, formula: str | None = None) ->
 def check_document(document, config: Config | None = None, formula: str | None = None, *,
                    strict: bool = False) -> CheckResult:
     """Findings plus the coupling networks; ``strict`` lets a failing rule raise (for tests)."""
+    # As in the parser: the findings have no reference cycles, and the collector's full scans of
+    # a large parsed document would cost more than the rules.
+    enabled = gc.isenabled()
+    gc.disable()
+    try:
+        return _check_document(document, config, formula, strict)
+    finally:
+        if enabled:
+            gc.enable()
+
+
+def _check_document(document, config, formula, strict) -> CheckResult:
     from .rules import Context, all_rules, resolve_names
 
     config = config or Config()
