@@ -579,9 +579,13 @@ class BlockBuilder(Transformer):
         open_at = text.index("(", m.end())
         depth, close_at = 0, open_at
         for close_at in range(open_at, len(text)):
-            depth += {"(": 1, ")": -1}.get(text[close_at], 0)
-            if depth == 0:
-                break
+            ch = text[close_at]
+            if ch == "(":
+                depth += 1
+            elif ch == ")":
+                depth -= 1
+                if depth == 0:
+                    break
         conditions = []
         pos = open_at + 1
         for raw in re.split(r"[,;]", text[open_at + 1 : close_at]):
@@ -660,8 +664,6 @@ class BlockBuilder(Transformer):
                     notes.append(phrase)
         if solvent:
             solvent_norm = solvent_key(solvent)
-        end_tok = c[-1]
-        end = signals[-1].span.end - ctx.base if signals and ctx.repaired.offsets is None else None
         last_pos = self._last_pos(c)
         header_end = self._last_pos(c[:-1]) if signals else last_pos
         return Spectrum(
@@ -680,7 +682,7 @@ class BlockBuilder(Transformer):
             header_span=ctx.span(start, header_end),
             header_text=ctx.text[start:header_end],
             nucleus_span=ctx.span(start, _stripped_end(head)),
-        ) if True else (end_tok, end)
+        )
 
     def _last_pos(self, items) -> int:
         """End offset (parsed-text coordinates) of the last thing in ``items``."""

@@ -195,6 +195,7 @@ _SOLVENT_KEYS = {
 _SOLVENT_SPLIT = re.compile(r"\s?[/+:–]\s?|\s-\s")
 
 
+@lru_cache(maxsize=1024)
 def solvent_key(written: str) -> str:
     """Canonical key of a written solvent or mixture: ``d6-DMSO`` → ``DMSO-d6``."""
     text = written.translate(SUBSCRIPT_DIGITS).strip()
