@@ -8,6 +8,8 @@ the user's original text (through the repair map and the document's line index).
 from __future__ import annotations
 
 import re
+from functools import lru_cache
+from typing import NamedTuple
 
 from lark import Token, Transformer
 
@@ -99,6 +101,29 @@ _LAST_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)(?=
 _SIGNAL_TAIL = r"(?!\s*ppm)(?:\s*[,;]\s*(?=[\-" "\u2212" r"]?\d))?\s*"
 
 
+class _Piece(NamedTuple):
+    """A token of a fast-path token, with the attributes the callbacks read from lark Tokens."""
+
+    type: str
+    value: str
+    start_pos: int
+    end_pos: int
+
+
+def _j_text(value: str) -> str:
+    """A J value as written, with the decimal point and ASCII minus (what Coupling.text keeps)."""
+    if "," in value or "\u2212" in value:
+        return value.replace("\u2212", "-").replace(",", ".")
+    return value
+
+
+@lru_cache(maxsize=1024)
+def _count_value(count_text: str) -> tuple[float, str]:
+    """``"2 × 3H"`` → (6.0, "H")."""
+    cm = _COUNT.match(" ".join(count_text.split()))
+    return number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1), cm.group("nuc")
+
+
 class FastPatterns:
     """The terminal patterns the fast-path tokens are made of, compiled for splitting them."""
 
@@ -127,6 +152,8 @@ class FastPatterns:
             f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
             f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
         )
+        self.direct_groups = ("s", "s2", "m", "jl", "j1", "j2", "j3", "c")
+        self.direct_index = dict(self.direct.groupindex)
         self.common = re.compile(
             f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
             f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
@@ -303,60 +330,49 @@ class BlockBuilder(Transformer):
     def _direct_signal(self, d):
         """The commonest signal, ``7.26 (d, J = 8.4 Hz, 2H)``, straight from one match; None when
         it needs the general path (a count "each", a "2 × d", an AB pattern)."""
-        written = d.group("m")
+        s1, s2, written, label, j1, j2, j3, count_text = d.group(*self.fast.direct_groups)
         name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
-        count_text = d.group("c")
         if multiplier != 1 or kind == "AB" or "each" in count_text:
             return None
+        regs = d.regs
+        ix = self.fast.direct_index
         span = self.ctx.span
-        s1 = d.group("s")
-        s2 = d.group("s2")
-        s_start = d.start("s")
-        s_end = d.end("s2") if s2 is not None else d.end("s")
-        mult = Multiplicity(name=name, span=span(d.start("m"), d.end("m")), written=written,
-                            components=components, broad=broad, apparent=apparent, kind=kind,
-                            multiplier=1)
-        j1 = d.group("j1")
+        s_start = regs[ix["s"]][0]
+        s_end = regs[ix["s2"]][1] if s2 is not None else regs[ix["s"]][1]
+        m_reg = regs[ix["m"]]
+        mult = Multiplicity(name, span(*m_reg), written, components, broad, apparent, kind, 1)
         if j1 is None:
             couplings = ()
         else:
-            label = d.group("jl")
             bonds, nuclei, lab = coupling_label(label)
-            label_start = d.start("jl") + len(label) - len(label.lstrip())
-            first = Coupling(value=number(j1), span=span(label_start, d.end("j1")),
-                             text=j1.replace("\u2212", "-").replace(",", "."),
-                             nuclei=nuclei, bonds=bonds, label=lab)
-            j2 = d.group("j2")
+            label_start = regs[ix["jl"]][0] + len(label) - len(label.lstrip())
+            first = Coupling(number(j1), span(label_start, regs[ix["j1"]][1]), _j_text(j1),
+                             nuclei, bonds, lab)
             if j2 is None:
                 couplings = (first,)
+            elif j3 is None:
+                couplings = (first, Coupling(number(j2), span(*regs[ix["j2"]]), _j_text(j2)))
             else:
-                rest = [first]
-                for g in ("j2", "j3"):
-                    value = d.group(g)
-                    if value is None:
-                        break
-                    rest.append(Coupling(value=number(value), span=span(d.start(g), d.end(g)),
-                                         text=value.replace("\u2212", "-").replace(",", ".")))
-                couplings = tuple(rest)
-        cm = _COUNT.match(count_text if " " not in count_text else " ".join(count_text.split()))
-        n = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
-        d_start, d_end = d.start("open"), d.end()
+                couplings = (first, Coupling(number(j2), span(*regs[ix["j2"]]), _j_text(j2)),
+                             Coupling(number(j3), span(*regs[ix["j3"]]), _j_text(j3)))
+        n, nucleus = _count_value(count_text)
+        d_start, d_end = regs[ix["open"]][0], regs[0][1]
         return Signal(
-            span=span(s_start, d_end),
-            shift=number(s1) if s2 is None else None,
-            range=None if s2 is None else (number(s1), number(s2)),
-            shift_text=self.ctx.parsed[s_start:s_end],
-            shift_span=span(s_start, s_end),
-            multiplicity=mult,
-            couplings=couplings,
-            count=n,
-            count_nucleus=cm.group("nuc"),
-            count_text=count_text,
-            count_span=span(d.start("c"), d.end("c")),
-            assignment=None,
-            notes=(),
-            details_span=span(d_start, d_end),
-            group=0,
+            span(s_start, d_end),
+            number(s1) if s2 is None else None,
+            None if s2 is None else (number(s1), number(s2)),
+            self.ctx.parsed[s_start:s_end],
+            span(s_start, s_end),
+            mult,
+            couplings,
+            n,
+            nucleus,
+            count_text,
+            span(*regs[ix["c"]]),
+            None,
+            (),
+            span(d_start, d_end),
+            0,
         )
 
     def _fast_entry(self, tok: Token):
@@ -538,7 +554,7 @@ class BlockBuilder(Transformer):
     def _bare_signal(self, shift):
         value, rng, text, s_start, s_end = shift
         sp = self.ctx.span(s_start, s_end)
-        return Signal(span=sp, shift=value, range=rng, shift_text=text, shift_span=sp)
+        return Signal(sp, value, rng, text, sp, None, (), None, None, "", None, None, (), None, 0)
 
     # ---- spectrum header -------------------------------------------------------------------
     def condition(self, c):
@@ -714,7 +730,7 @@ class BlockBuilder(Transformer):
         fast = self.fast
         text = self.ctx.parsed
         m = fast.ms_start.match(text, tok.start_pos)
-        tokens = [Token("MS_START", m.group(0), start_pos=m.start(), end_pos=m.end())]
+        tokens = [_Piece("MS_START", m.group(0), m.start(), m.end())]
         pos, end = m.end(), tok.end_pos
         gap, part = fast.ms_gap, fast.ms_part
         while pos < end:
@@ -722,7 +738,7 @@ class BlockBuilder(Transformer):
             if pos >= end:
                 break
             p = part.match(text, pos, end)
-            tokens.append(Token(p.lastgroup, p.group(0), start_pos=pos, end_pos=p.end()))
+            tokens.append(_Piece(p.lastgroup, p.group(0), pos, p.end()))
             pos = p.end()
         return tokens
 
@@ -770,7 +786,9 @@ class BlockBuilder(Transformer):
                 elif mode is None and found is None:
                     found, found_text, found_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
         return MassSpec(
-            span=ctx.span(_lead(head), self._last_pos(c)),
+            span=ctx.span(_lead(head), self._last_pos([t if isinstance(t, Token) else
+                                                        Token(t.type, t.value, start_pos=t.start_pos)
+                                                        for t in c[-1:]])),
             method=method,
             ion=ion,
             ion_written=ion_written,
