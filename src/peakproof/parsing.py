@@ -8,6 +8,7 @@ import os
 import re
 import tempfile
 import threading
+from functools import lru_cache
 from pathlib import Path
 
 from lark import Lark
@@ -116,7 +117,8 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
         parser = Lark(grammar, cache=str(cache), **options)
     except (OSError, PermissionError):
         parser = Lark(grammar, **options)
-    builder.fast = FastPatterns(lambda name: parser.get_terminal(name).pattern.to_regexp())
+    # The fast tokens' own patterns are compiled only for the grammar that has them.
+    builder.fast = FastPatterns(lambda name: parser.get_terminal(name).pattern.to_regexp()) if fast else None
     return builder, parser
 
 
@@ -230,15 +232,19 @@ def _block(span, raw, items, number=0, suppressed=()) -> Block:
 
 
 # ---- recovery --------------------------------------------------------------------------------
-_ITEM_BOUNDARY = re.compile(
-    r"(?:^|(?<=[;,.])|(?<=[;,.]\s)|(?<=[;,.]\s\s))(?=\s*(?:" + CORE_START.pattern + "|" + OTHER_START.pattern[OTHER_START.pattern.index("(?:(?:"):] + "))"
-)
+@lru_cache(maxsize=1)
+def _item_boundary() -> re.Pattern:
+    """Where items start inside a block (compiled on the first damaged block only)."""
+    return re.compile(
+        r"(?:^|(?<=[;,.])|(?<=[;,.]\s)|(?<=[;,.]\s\s))(?=\s*(?:" + CORE_START.pattern + "|"
+        + OTHER_START.pattern[OTHER_START.pattern.index("(?:(?:"):] + "))"
+    )
 
 
 def _recover(parser: Lark, builder: BlockBuilder, ctx: Context) -> list:
     """Read a block that failed as a whole: item by item, then signal by signal."""
     text = ctx.text
-    starts = sorted({m.start() for m in _ITEM_BOUNDARY.finditer(text)} | {0})
+    starts = sorted({m.start() for m in _item_boundary().finditer(text)} | {0})
     items: list = []
     for a, b in zip(starts, starts[1:] + [len(text)]):
         piece = text[a:b]
