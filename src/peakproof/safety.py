@@ -146,14 +146,69 @@ def checked_format(
     new_text = plan.apply(text)
     if not plan.edits:
         return Result(new_text, plan)
+    try:
+        _prove(doc, text, plan, style, round_numbers, path)
+    except UnsafeFormat as failure:
+        # One odd block must not cost the whole document: keep the blocks whose rewrite is
+        # proven on its own, leave the others as written (and say so), then prove the whole again.
+        plan, left = _salvage(doc, text, plan, style, round_numbers, path, failure)
+        new_text = plan.apply(text)
+        _prove(doc, text, plan, style, round_numbers, path, untouched=left)
+    return Result(new_text, plan)
+
+
+def _prove(doc, text, plan, style, round_numbers, path, untouched=()) -> None:
+    """Raise :class:`UnsafeFormat` unless ``plan`` keeps the data and a second pass is a no-op.
+
+    ``untouched``: original spans deliberately left as written; a second pass may still want to
+    rewrite those, which is not a failure of the first."""
+    from . import parse
+
+    new_text = plan.apply(text)
+    if not plan.edits:
+        return
     verify(doc, new_text, style, round_numbers=round_numbers)
     again = plan_edits(parse(new_text, path=path), style, round_numbers=round_numbers)
+    if untouched:
+        moved = [_moved(span, plan.edits) for span in untouched]
+        edits = tuple(e for e in again.edits if not any(a <= e[0] and e[1] <= b for a, b in moved))
+        again = type(again)(edits, again.changes)
     if again.edits:
         second = again.apply(new_text)
         diff = "\n".join(difflib.unified_diff(
             new_text.splitlines(), second.splitlines(), "first pass", "second pass", lineterm=""))  # fmt: skip
         raise UnsafeFormat("formatting the output again changes it (not idempotent)", diff)
-    return Result(new_text, plan)
+
+
+def _moved(span, edits) -> tuple[int, int]:
+    """Where an untouched span of the original sits after ``edits`` (which do not overlap it)."""
+    shift_start = sum(len(new) - (end - start) for start, end, new in edits if end <= span.start)
+    return span.start + shift_start, span.end + shift_start
+
+
+def _salvage(doc, text, plan, style, round_numbers, path, failure: UnsafeFormat):
+    """The plan restricted to blocks whose edits are proven safe one block at a time."""
+    from .emit import Change, Plan
+
+    kept_edits: list[tuple[int, int, str]] = []
+    notes: list[Change] = []
+    for block in doc.blocks:
+        own = tuple(e for e in plan.edits if block.span.start <= e[0] and e[1] <= block.span.end)
+        if not own:
+            continue
+        others = tuple(b.span for b in doc.blocks if b is not block)
+        try:
+            _prove(doc, text, Plan(own, ()), style, round_numbers, path, untouched=others)
+        except UnsafeFormat:
+            label = f"compound {block.compound}" if block.compound else f"block {block.index + 1}"
+            notes.append(Change("kept", f"left {label} as written: its rewrite did not read back as "
+                                        "the same data (please report it)", block.span))  # fmt: skip
+            continue
+        kept_edits.extend(own)
+    if not notes:  # no single block is to blame: the failure is elsewhere
+        raise failure
+    inside = [c for c in plan.changes if any(k[0] <= c.span.start < k[1] for k in kept_edits)]
+    return Plan(tuple(kept_edits), tuple(inside) + tuple(notes)), tuple(n.span for n in notes)
 
 
 def verify(before: Document, new_text: str, style: type[Style], *, round_numbers: bool = False):
