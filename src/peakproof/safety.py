@@ -205,7 +205,7 @@ def _salvage(doc, text, plan, style, round_numbers, path, failure: UnsafeFormat)
                                         "the same data (please report it)", block.span))  # fmt: skip
             continue
         kept_edits.extend(own)
-    if not notes:  # no single block is to blame: the failure is elsewhere
+    if not notes or not kept_edits:  # no single block to blame, or every block: a real fault
         raise failure
     inside = [c for c in plan.changes if any(k[0] <= c.span.start < k[1] for k in kept_edits)]
     return Plan(tuple(kept_edits), tuple(inside) + tuple(notes)), tuple(n.span for n in notes)
