@@ -245,7 +245,11 @@ def _format_one(path, style, args, check, counts) -> int:
         for line in fixes:
             print(f"{name}: fixed: {line}", file=sys.stderr)
         for change in result.changes:
-            print(change.line(name), file=sys.stderr)
+            where = source.locate(change.span.start) if source.format in ("docx", "pdf") else None
+            if where is not None:  # Word and PDF: the place as the user sees it
+                print(f"{name}:{where.describe()}: {change.kind}: {change.message}", file=sys.stderr)
+            else:
+                print(change.line(name), file=sys.stderr)
     changed = final != text
     rewritten = None  # a .md/.tex file's new bytes, in its own markup
     if changed and path != "-" and source.format in ("md", "tex"):
