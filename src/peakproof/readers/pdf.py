@@ -43,6 +43,7 @@ _DECIMAL = re.compile(r"\d[.,]\d")
 _HYPHENS = "-\u2010\u00ad"
 _EDGE_LINES = 3  # how many lines at the top and bottom of a page may be headers/footers
 _SHORT_LINE = 40  # headers compared with digits masked only when at most this long
+_SECTION_GAP = 1e4  # points between the lines of two reading directions: always a blank line
 
 
 @dataclass(slots=True)
@@ -54,16 +55,31 @@ class _Line:
     size: float
 
 
-def _group_lines(chars: list[dict], page_height: float) -> list[tuple[float, float, str]]:
-    """Characters → (baseline, size, text) lines, top to bottom."""
-    glyphs = []
-    for ch in chars:
-        text = ch.get("text") or ""
-        if not text:
-            continue
-        matrix = ch.get("matrix")
-        baseline = page_height - matrix[5] if matrix else ch["bottom"]
-        glyphs.append((baseline, ch["x0"], ch["x1"], float(ch.get("size") or 0.0), text))
+def _direction(a: float, b: float) -> int:
+    """The reading direction, in degrees counter-clockwise on the displayed page, of a glyph
+    whose baseline runs along (a, b), snapped to the nearest quarter turn."""
+    if abs(a) >= abs(b):
+        return 0 if a > 0 else 180
+    return 90 if b > 0 else 270
+
+
+def _reading_frame(direction: int, x0: float, y0: float, x1: float, y1: float, e: float,
+                   f: float) -> tuple[float, float, float, float]:  # fmt: skip
+    """A glyph in its direction's reading frame: (baseline key, growing from the first line to
+    the last; start and end along the text; size across it), from its displayed box and its
+    origin (e, f)."""
+    if direction == 90:  # reads upwards: the first line is the leftmost
+        return e, y0, y1, x1 - x0
+    if direction == 270:  # reads downwards: the first line is the rightmost
+        return -e, -y1, -y0, x1 - x0
+    if direction == 180:  # upside down
+        return f, -x1, -x0, y1 - y0
+    return -f, x0, x1, y1 - y0
+
+
+def _group_lines(glyphs: list[tuple]) -> list[tuple[float, float, str]]:
+    """Glyphs of one reading direction, as (baseline key, start, end, size, text) in that
+    direction's frame → (baseline key, size, text) lines, first line first."""
     if not glyphs:
         return []
     sizes = sorted(g[3] for g in glyphs)
@@ -111,6 +127,41 @@ def _group_lines(chars: list[dict], page_height: float) -> list[tuple[float, flo
         if text:
             lines.append((cluster[0][0], max(g[3] for g in cluster), text))
     return lines
+
+
+def _page_lines(upright: list[tuple], turned: dict[int, list[tuple]],
+                ) -> list[tuple[float, float, str]]:  # fmt: skip
+    """All lines of a page.  The reading direction holding the most glyphs is the body; when
+    that is a turned one, upright lines displayed above it (a running header over a landscape
+    table) come first and every other line after it, each direction in its own reading order.
+    Baseline keys of the different directions are made to follow one another with a wide gap,
+    so each direction's lines stand apart as a paragraph of their own."""
+    if not turned:
+        return _group_lines(upright)
+    groups = sorted(([(0, upright)] if upright else []) + list(turned.items()),
+                    key=lambda item: -len(item[1]))  # fmt: skip
+    body_direction, body = groups[0]
+    sections = [[], _group_lines(body), []]  # upright above a turned body, body, upright rest
+    if body_direction != 0 and upright:
+        top = _displayed_top(body_direction, body)
+        for line in _group_lines(upright):
+            sections[0 if -line[0] > top else 2].append(line)
+    sections.extend(_group_lines(glyphs) for direction, glyphs in groups[1:] if direction != 0)
+    lines: list[tuple[float, float, str]] = []
+    for section in sections:
+        if section:
+            shift = lines[-1][0] + _SECTION_GAP - section[0][0] if lines else 0.0
+            lines.extend((key + shift, size, text) for key, size, text in section)
+    return lines
+
+
+def _displayed_top(direction: int, glyphs: list[tuple]) -> float:
+    """The highest displayed y that glyphs of a turned reading direction reach."""
+    if direction == 90:  # start and end along the text are displayed y
+        return max(g[2] for g in glyphs)
+    if direction == 270:  # start and end are minus displayed y
+        return -min(g[1] for g in glyphs)
+    return max(g[0] + g[3] for g in glyphs)  # 180: the key is the displayed baseline y
 
 
 def _masked(text: str) -> str:
@@ -218,12 +269,16 @@ def _open_pdf(source, name: str):
 
 
 def _char_reader(pdf):
-    """A function page → its characters as dicts (text, matrix, x0, x1, size, bottom).
+    """A function page → its glyphs as (baseline key, start, end, size, text), upright ones
+    in a list and turned ones by reading direction (see :func:`_reading_frame`).
 
     pdfminer's interpreter is driven directly with no layout analysis: pdfplumber's
     ``page.chars`` resolves every attribute of every glyph object, which costs about four times
     the interpretation itself (a 300-page SI took half a minute).  The coordinates are the
-    same: both come from pdfminer's device space, relative to the page's media box."""
+    same: both come from pdfminer's device space, relative to the page's media box.  That space
+    is the page as displayed: pdfminer folds the page's ``/Rotate`` into the transformation
+    it starts from, so each glyph's matrix (text matrix × CTM) carries the reading direction
+    of a rotated page and of text drawn under a rotation alike."""
     from pdfminer.converter import PDFPageAggregator
     from pdfminer.layout import LTChar
     from pdfminer.pdfinterp import PDFPageInterpreter, PDFResourceManager
@@ -232,19 +287,26 @@ def _char_reader(pdf):
     device = PDFPageAggregator(resources, laparams=None)
     interpreter = PDFPageInterpreter(resources, device)
 
-    def walk(item, out: list[dict], height: float) -> None:
+    def walk(item, upright: list[tuple], turned: dict[int, list[tuple]]) -> None:
         for child in item:
             if isinstance(child, LTChar):
-                out.append({"text": child.get_text(), "matrix": child.matrix, "x0": child.x0,
-                            "x1": child.x1, "size": child.size, "bottom": height - child.y0})
+                m = child.matrix
+                if m[0] > 0 and m[0] >= abs(m[1]):  # upright: nearly every glyph, kept cheap
+                    upright.append((-m[5], child.x0, child.x1, child.size, child.get_text()))
+                    continue
+                direction = _direction(m[0], m[1])
+                frame = _reading_frame(direction, child.x0, child.y0, child.x1, child.y1,
+                                       m[4], m[5])  # fmt: skip
+                turned.setdefault(direction, []).append((*frame, child.get_text()))
             elif hasattr(child, "__iter__"):
-                walk(child, out, height)  # figures and forms hold characters too
+                walk(child, upright, turned)  # figures and forms hold characters too
 
-    def page_chars(page) -> list[dict]:
+    def page_chars(page) -> tuple[list[tuple], dict[int, list[tuple]]]:
         interpreter.process_page(page.page_obj)
-        chars: list[dict] = []
-        walk(device.get_result(), chars, float(page.height))
-        return chars
+        upright: list[tuple] = []
+        turned: dict[int, list[tuple]] = {}
+        walk(device.get_result(), upright, turned)
+        return upright, turned
 
     return page_chars
 
@@ -264,7 +326,7 @@ def read_pdf(source: str | os.PathLike | bytes, name: str = "", limits: Limits |
         for number, page in enumerate(pages, 1):
             deadline.check(f"page {number}")
             try:
-                grouped = _group_lines(page_chars(page), float(page.height))
+                grouped = _page_lines(*page_chars(page))
             except Exception as exc:
                 raise ReaderError(f"page {number} of the PDF could not be read "
                                   f"({type(exc).__name__}: {exc})",
