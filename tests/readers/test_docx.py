@@ -104,10 +104,13 @@ def test_docx_is_sniffed_from_bytes(sample):
         ("8.4", Location("docx", paragraph=3, run=8, offset_in_run=3)),
         (" m/z", Location("docx", paragraph=5, run=2, offset_in_run=0)),  # the tab
         ("μ", Location("docx", paragraph=5, run=4, offset_in_run=3)),  # the w:sym
-        ("13C", Location("docx", paragraph=7, run=1, offset_in_run=0, table=1, row=1, cell=2)),
-        ("21.0", Location("docx", paragraph=9, run=1, offset_in_run=9, table=1, row=2, cell=2)),
-        ("second", Location("docx", paragraph=10, run=1, offset_in_run=0, table=1, row=2,
-                            cell=2)),  # fmt: skip
+        # in a cell, paragraphs count within the cell; the document-wide number rides along
+        ("13C", Location("docx", paragraph=1, run=1, offset_in_run=0, table=1, row=1, cell=2,
+                         document_paragraph=7)),  # fmt: skip
+        ("21.0", Location("docx", paragraph=1, run=1, offset_in_run=9, table=1, row=2, cell=2,
+                          document_paragraph=9)),  # fmt: skip
+        ("second", Location("docx", paragraph=2, run=1, offset_in_run=0, table=1, row=2,
+                            cell=2, document_paragraph=10)),  # fmt: skip
         ("After", Location("docx", paragraph=11, run=1, offset_in_run=0)),
     ],
 )
@@ -120,11 +123,73 @@ def test_docx_descriptions(sample):
     source = read_document(sample)
     assert source.locate(source.text.index("J =")).describe() == "paragraph 3, run 7"
     assert source.locate(source.text.index("21.0")).describe() == (
-        "table 1, row 2, cell 2, paragraph 9, run 1"
+        "table 1, row 2, cell 2, paragraph 1 of the cell, run 1"
+    )
+    assert source.locate(source.text.index("second")).describe() == (
+        "table 1, row 2, cell 2, paragraph 2 of the cell, run 1"
     )
     # A paragraph break belongs to its paragraph, not to a run.
     newline = source.text.index("\n", source.text.index("2H)."))
     assert source.locate(newline).describe() == "paragraph 3"
+
+
+def test_docx_json_keeps_the_document_wide_paragraph(sample):
+    source = read_document(sample)
+    in_cell = source.locate(source.text.index("second")).to_json()
+    assert in_cell == {"format": "docx", "paragraph": 2, "run": 1, "offset_in_run": 0,
+                       "table": 1, "row": 2, "cell": 2, "document_paragraph": 10}  # fmt: skip
+    # outside tables the two numbers agree, and the JSON says so just the same
+    body = source.locate(source.text.index("After")).to_json()
+    assert body["paragraph"] == body["document_paragraph"] == 11 and "table" not in body
+
+
+def test_nested_table_paragraphs_count_within_their_own_cell(tmp_path):
+    document = docx.Document()
+    document.add_paragraph("Invented data, Halvorsen group (fictional).")
+    outer = document.add_table(rows=1, cols=1).cell(0, 0)
+    outer.text = "outer first"
+    inner = outer.add_table(rows=1, cols=2)
+    inner.cell(0, 1).text = "inner only"
+    outer.add_paragraph("outer after")
+    path = tmp_path / "nested.docx"
+    document.save(path)
+    source = read_document(path)
+
+    def where(needle):
+        return source.locate(source.text.index(needle))
+
+    assert where("outer first").describe() == (
+        "table 1, row 1, cell 1, paragraph 1 of the cell, run 1")
+    assert where("inner only").describe() == (
+        "table 2, row 1, cell 2, paragraph 1 of the cell, run 1")
+    # Document paragraphs: 2 "outer first", 3 inner cell 1's empty one, 4 "inner only", 5 the
+    # empty one python-docx puts after a table in a cell (Word wants a cell to end with a
+    # paragraph), 6 "outer after": the outer cell's own are 2, 5 and 6, so this is its third.
+    assert where("outer after").describe() == (
+        "table 1, row 1, cell 1, paragraph 3 of the cell, run 1")
+    assert [where(n).document_paragraph for n in ("outer first", "inner only", "outer after")] \
+        == [2, 4, 6]  # fmt: skip
+
+
+def test_check_points_into_a_table_cell(tmp_path, capsys):
+    from peakproof.cli import main
+
+    document = docx.Document()
+    document.add_paragraph("Invented data, Halvorsen group (fictional).")
+    table = document.add_table(rows=2, cols=2)
+    table.cell(0, 0).text, table.cell(0, 1).text = "compound", "data"
+    table.cell(1, 0).text = "7c"
+    cell = table.cell(1, 1)
+    cell.text = "Ethyl 4-methoxybenzoate (7c)."
+    # a doublet's J recurs in its partner (common practice); 8.9 Hz here recurs nowhere
+    cell.add_paragraph("1H NMR (400 MHz, CDCl3) δ 7.99 (d, J = 8.9 Hz, 2H), 6.91 (d, "
+                       "J = 7.2 Hz, 2H), 3.86 (s, 3H).")  # fmt: skip
+    path = tmp_path / "cell.docx"
+    document.save(path)
+    main(["check", "--select", "coupling-no-partner", "--no-progress", str(path)])
+    out = capsys.readouterr().out
+    finding = next(line for line in out.splitlines() if "J = 8.9 Hz" in line)
+    assert finding.startswith(f"{path}:table 1, row 2, cell 2, paragraph 2 of the cell, run 1: ")
 
 
 def document_xml(path) -> bytes:

@@ -28,7 +28,12 @@ class ReaderError(ValueError):
 @dataclass(frozen=True, slots=True)
 class Location:
     """A place in the original document, in that format's own terms (all numbers 1-based,
-    except ``offset_in_run``, which counts characters from the start of the run's text)."""
+    except ``offset_in_run``, which counts characters from the start of the run's text).
+
+    In a Word table cell ``paragraph`` counts the cell's own paragraphs, as a reader looking
+    at the cell would, and ``document_paragraph`` holds the paragraph's number in the whole
+    document; elsewhere ``paragraph`` is that number itself.  ``to_json()`` always gives a
+    Word location's ``document_paragraph``."""
 
     format: str
     line: int | None = None
@@ -40,13 +45,16 @@ class Location:
     table: int | None = None
     row: int | None = None
     cell: int | None = None
+    document_paragraph: int | None = None
 
     def describe(self) -> str:
         if self.format == "docx":
             parts = []
             if self.table is not None:
                 parts.append(f"table {self.table}, row {self.row}, cell {self.cell}")
-            parts.append(f"paragraph {self.paragraph}")
+                parts.append(f"paragraph {self.paragraph} of the cell")
+            else:
+                parts.append(f"paragraph {self.paragraph}")
             if self.run is not None:
                 parts.append(f"run {self.run}")
             return ", ".join(parts)
@@ -55,7 +63,10 @@ class Location:
         return f"line {self.line}, column {self.column}"
 
     def to_json(self) -> dict[str, Any]:
-        return {k: getattr(self, k) for k in self.__slots__ if getattr(self, k) is not None}
+        out = {k: getattr(self, k) for k in self.__slots__ if getattr(self, k) is not None}
+        if self.format == "docx" and self.paragraph is not None:
+            out.setdefault("document_paragraph", self.paragraph)  # outside cells: the same
+        return out
 
 
 class OffsetMap:

@@ -8,11 +8,12 @@ empty line.  Tabs become spaces, line breaks (``w:br``, ``w:cr``) newlines, a no
 give their plain characters (``1H``, ``CDCl3``).  Characters in the Symbol font (in a run
 whose font is Symbol, or a ``w:sym`` element) are mapped to Unicode (Symbol "d" → δ).
 
-Numbering: paragraphs count body and table-cell paragraphs in document order from 1; runs
-count the ``w:r`` elements of a paragraph from 1, including runs inside hyperlinks, tracked
-insertions and content controls; tables are numbered in document order (nested ones too) and
-rows and cells from 1 within their table.  ``offset_in_run`` counts characters of the run's
-text from 0.
+Numbering: a location's paragraph counts from 1 within its table cell (the innermost one,
+for nested tables), or, outside tables, across the document; ``document_paragraph`` counts
+body and table-cell paragraphs together in document order from 1.  Runs count the ``w:r``
+elements of a paragraph from 1, including runs inside hyperlinks, tracked insertions and
+content controls; tables are numbered in document order (nested ones too) and rows and cells
+from 1 within their table.  ``offset_in_run`` counts characters of the run's text from 0.
 """
 
 from __future__ import annotations
@@ -76,14 +77,19 @@ class _Piece:
 class _Walk:
     def __init__(self, heading_styles: set[str], keep_pieces: bool):
         self.out = TextBuilder()
-        self.records: list[tuple] = []  # (paragraph, run or None, table, row, cell)
+        # (document paragraph, run or None, table, row, cell, paragraph within the cell)
+        self.records: list[tuple] = []
         self.paragraph = 0
+        self.cell_paragraph = 0  # paragraphs so far in the innermost cell being read
         self.tables = 0
         self.heading_styles = heading_styles
         self.pieces: list[_Piece] | None = [] if keep_pieces else None
 
     def record(self, run: int | None, where: tuple | None) -> int:
-        self.records.append((self.paragraph, run, *(where or (None, None, None))))
+        if where is None:
+            self.records.append((self.paragraph, run, None, None, None, None))
+        else:
+            self.records.append((self.paragraph, run, *where, self.cell_paragraph))
         return len(self.records) - 1
 
     def blocks(self, container, where: tuple | None) -> None:
@@ -94,9 +100,12 @@ class _Walk:
             elif tag == _w("tbl"):
                 self.tables += 1
                 number = self.tables
+                outer_count = self.cell_paragraph  # a nested table sits inside a cell
                 for r, tr in enumerate(child.iterchildren(_w("tr")), 1):
                     for c, tc in enumerate(tr.iterchildren(_w("tc")), 1):
+                        self.cell_paragraph = 0
                         self.blocks(tc, (number, r, c))
+                self.cell_paragraph = outer_count
             elif tag == _w("sdt") or tag == _w("customXml"):
                 content = child.find(_w("sdtContent")) if tag == _w("sdt") else child
                 if content is not None:
@@ -113,6 +122,7 @@ class _Walk:
 
     def paragraph_text(self, p, where: tuple | None) -> None:
         self.paragraph += 1
+        self.cell_paragraph += 1
         out = self.out
         paragraph_key = self.record(None, where)
         if self.is_heading(p) and out.length and out.tail(2) != "\n\n":
@@ -230,10 +240,11 @@ class _DocxLocator:
         key, pos = self._map.lookup(offset)
         if key is None:
             return Location("docx", paragraph=1)
-        paragraph, run, table, row, cell = self._records[key]
-        return Location("docx", paragraph=paragraph, run=run,
-                        offset_in_run=pos if run is not None else None,
-                        table=table, row=row, cell=cell)  # fmt: skip
+        paragraph, run, table, row, cell, in_cell = self._records[key]
+        return Location("docx", paragraph=paragraph if in_cell is None else in_cell, run=run,
+                        offset_in_run=pos if run is not None else None, table=table, row=row,
+                        cell=cell, document_paragraph=None if in_cell is None else paragraph,
+                        )  # fmt: skip
 
 
 def read_docx(source: str | os.PathLike | bytes, name: str = "", limits: Limits | None = None,
