@@ -21,6 +21,9 @@ characters are grouped by baseline, and smaller characters join the nearest line
 ``line`` counts every line rebuilt on the page, headers included, from the top, so it
 matches what a reader counts; ``column`` is 1-based in that line's extracted text.
 Multi-column layouts are read line by line across the columns.
+Turned text (a page with ``/Rotate``, a landscape table drawn under a rotation) is read along
+each glyph's own direction, snapped to quarter turns; a page's lines are those of its main
+direction, with any other direction's lines after them as paragraphs of their own.
 """
 
 from __future__ import annotations
