@@ -177,6 +177,19 @@ def _batch_check(args, config) -> int:
     return EXIT_USAGE if summary.unreadable_count else worst["status"]
 
 
+def _finding_json(d, source, doc) -> dict:
+    """A finding in the published shape, plus its compound and, for Word and PDF, its place there."""
+    out = d.to_json()
+    block = next((b for b in doc.blocks if b.span.start <= d.span.start <= b.span.end), None)
+    out["compound"] = block.compound if block is not None else None
+    if source.format in ("docx", "pdf"):
+        where = source.locate(d.span.start)
+        if where is not None:
+            out["where"] = where.describe()
+            out["location"] = where.to_json()
+    return out
+
+
 def _check(args) -> int:
     from . import __version__
     from .api import InputError, parse_path
@@ -218,7 +231,8 @@ def _check(args) -> int:
             if at_or_above(d.severity, config.fail_on) and status == EXIT_OK:
                 status = EXIT_FINDINGS
         if args.format == "json":
-            documents.append({"path": source.name, "findings": [d.to_json() for d in result.diagnostics],
+            documents.append({"path": source.name,
+                              "findings": [_finding_json(d, source, doc) for d in result.diagnostics],
                               "networks": result.networks})
         elif args.format == "text":
             for line in finding_lines(source, result.diagnostics, show_source=not args.quiet, document=doc):
