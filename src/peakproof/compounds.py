@@ -19,6 +19,7 @@ from __future__ import annotations
 import re
 from dataclasses import replace
 
+from .lazyre import lazy
 from .model import Block
 from .span import LineIndex
 
@@ -30,9 +31,9 @@ _LABEL_AT_END = re.compile(
     rf"\((?P<label>{_LABEL_TEXT})(?:\s*[;,]\s*(?P<inner>{_FORMULA_TEXT}))?\)"
     rf"(?:\s*[,:;]?\s*\(?(?P<after>{_FORMULA_TEXT})\)?)?\s*[.:]?\s*$"
 )
-_FORMULA_AT_END = re.compile(rf"[\s,:;(]+(?P<formula>{_FORMULA_TEXT})\)?\s*[.:]?\s*$")
-_COMPOUND_WORD = re.compile(r"\b(?:[Cc]ompound|[Pp]roduct)\s+(?P<label>\d{1,3}[a-z]?)\b")
-_LABEL_IN_SENTENCE = re.compile(
+_FORMULA_AT_END = lazy(rf"[\s,:;(]+(?P<formula>{_FORMULA_TEXT})\)?\s*[.:]?\s*$")
+_COMPOUND_WORD = lazy(r"\b(?:[Cc]ompound|[Pp]roduct)\s+(?P<label>\d{1,3}[a-z]?)\b")
+_LABEL_IN_SENTENCE = lazy(
     rf"\((?P<label>\d{{1,3}}[a-z]?)(?:\s*[;,]\s*(?P<inner>{_FORMULA_TEXT}))?\)"
     rf"(?:\s*[,:;]?\s*\(?(?P<after>{_FORMULA_TEXT})\)?(?![\w(]))?"
 )

@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 import gc
-import hashlib
 import os
 import re
 import tempfile
 import threading
+import zlib
 from functools import lru_cache
 from pathlib import Path
 
@@ -15,6 +15,7 @@ from lark import Lark
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from .compounds import compound_of
+from .lazyre import lazy
 from .locate import CORE_START, OTHER_START, iter_locate
 from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
 from .repair import Repaired, normalize_for_locating, repair
@@ -91,15 +92,19 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
     ``fast=False`` drops the fast-path tokens (SIGNAL, BARE_SHIFT) so tests can check that both
     ways of reading give the same model.
     """
-    digest = hashlib.sha256(b"fast" if fast else b"slow")
+    # The cache file is named after the grammar files' contents (crc32 and length: hashlib would
+    # cost an import at every start-up, and a stale cache only means one rebuild).
+    key = zlib.crc32(b"fast" if fast else b"slow")
+    size = 0
     for path in _grammar_files():
-        digest.update(path.name.encode())
-        digest.update(path.read_bytes())
+        data = path.name.encode() + path.read_bytes()
+        key = zlib.crc32(data, key)
+        size += len(data)
     import lark
 
-    digest.update(lark.__version__.encode())
+    key = zlib.crc32(lark.__version__.encode(), key)
     cache_dir = Path(os.environ.get("PEAKPROOF_CACHE_DIR") or tempfile.gettempdir())
-    cache = cache_dir / f"peakproof-grammar-{digest.hexdigest()[:16]}.lark-cache"
+    cache = cache_dir / f"peakproof-grammar-{key:08x}-{size}.lark-cache"
     builder = BlockBuilder()
     options = dict(
         parser="lalr",
@@ -117,6 +122,10 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
         parser = Lark(grammar, cache=str(cache), **options)
     except (OSError, PermissionError):
         parser = Lark(grammar, **options)
+    if not fast:  # short texts: one compiled pattern per terminal, not one per parser state
+        from .lean_lexer import install
+
+        install(parser)
     # The fast tokens' own patterns are compiled only for the grammar that has them.
     builder.fast = FastPatterns(lambda name: parser.get_terminal(name).pattern.to_regexp()) if fast else None
     return builder, parser
@@ -275,7 +284,7 @@ def _parse_piece(parser, builder, ctx, offset, piece, start):
     return result if isinstance(result, list) else [result]
 
 
-_SIGNAL_SEP = re.compile(r"[,;]")
+_SIGNAL_SEP = lazy(r"[,;]")
 
 
 def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:
@@ -305,7 +314,7 @@ def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:
     return replace(head, signals=tuple(signals), span=ctx.index.span(head.span.start, last.end))
 
 
-_HEADER_RE = re.compile(
+_HEADER_RE = lazy(
     r"^\s*[;,.]?\s*(?:\S+?\s?(?:\{[^{}]*\}|\[[^\]]*\])?\s?-?\s?NMR(?:\s?spectrum)?|δ\s?_?\{?[HCFPBN]\}?)"
 )
 
@@ -344,7 +353,7 @@ def _header_end(piece: str) -> int | None:
         return i
 
 
-_UNCLOSED_BEFORE = re.compile(r"[,;]\s*[-−]?\d+(?:[.,]\d+)?(?:\s*[-–—]\s*[-−]?\d+(?:[.,]\d+)?)?\s*$")
+_UNCLOSED_BEFORE = lazy(r"[,;]\s*[-−]?\d+(?:[.,]\d+)?(?:\s*[-–—]\s*[-−]?\d+(?:[.,]\d+)?)?\s*$")
 
 
 def _split_top_level(piece: str, start: int):

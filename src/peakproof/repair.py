@@ -9,6 +9,8 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 
+from .lazyre import lazy
+
 # One-for-one substitutions: no offset shift.
 _SPACES = "\u00a0\u2000\u2001\u2002\u2003\u2004\u2005\u2006\u2007\u2008\u2009\u200a\u202f\u205f\u3000"
 _SAME_LENGTH = str.maketrans({**{c: " " for c in _SPACES}, "\u2010": "-", "\u2011": "-", "\t": " "})
@@ -19,11 +21,11 @@ _NEEDS_WORK = re.compile(
 )
 
 # "J ¼ 7.1" — the equals sign came out as the ¼ glyph.
-_QUARTER = re.compile(r"¼")
+_QUARTER = lazy(r"¼")
 # "J ) 7.1" — the equals sign came out as a parenthesis.
-_PAREN_EQ = re.compile(r"(J[A-Za-z(),–\-]{0,6}\s?)\)(\s?\d)")
+_PAREN_EQ = lazy(r"(J[A-Za-z(),–\-]{0,6}\s?)\)(\s?\d)")
 # A stray "d" for δ: after the header's parenthesis or colon, or as "dH (…".
-_STRAY_DELTA = re.compile(
+_STRAY_DELTA = lazy(
     r"(NMR\s*(?:\([^()]*(?:\([^()]*\)[^()]*)*\))?\s*:?\s*)d(\s*(?:\(ppm\))?\s*[=:]?\s*[-−+]?\d)"
     r"|(NMR\s*)d(\s?\()"
     r"|((?:^|[;.]\s)\s*)d([HCF]\s?\()"

@@ -13,6 +13,7 @@ from typing import NamedTuple
 
 from lark import Token, Transformer
 
+from .lazyre import lazy
 from .model import (
     Coupling,
     ElementalAnalysis,
@@ -80,9 +81,9 @@ _LEAD = re.compile(r"^[;,.]?\s*")
 _COUNT = re.compile(
     r"^(?:(?P<mult>\d+)\s?[×x]\s?)?(?P<n>\d+(?:[.,]\d+)?)\s?(?P<nuc>Si|[HCFPDBN])(?P<each>\s?each)?$"
 )
-_REFERENCE = re.compile(r"TMS|Me4Si|Me₄Si|tetramethylsilane|ref|internal|standard|residual|DSS|TSP", re.I)
-_ROOM_T = re.compile(r"^(?:rt|r\.t\.|RT|room\s+temperature|ambient)$", re.I)
-_METHOD_IN_HEAD = re.compile(r"(ESI|EI|CI|APCI|APPI|FAB|MALDI|DART|FD)(?:\s?-?\s?((?:Q-?)?TOF))?([+\-]?)")
+_REFERENCE = lazy(r"TMS|Me4Si|Me₄Si|tetramethylsilane|ref|internal|standard|residual|DSS|TSP", re.I)
+_ROOM_T = lazy(r"^(?:rt|r\.t\.|RT|room\s+temperature|ambient)$", re.I)
+_METHOD_IN_HEAD = lazy(r"(ESI|EI|CI|APCI|APPI|FAB|MALDI|DART|FD)(?:\s?-?\s?((?:Q-?)?TOF))?([+\-]?)")
 
 
 def _lead(token: Token) -> int:

@@ -9,6 +9,8 @@ from __future__ import annotations
 import re
 from functools import lru_cache
 
+from .lazyre import lazy
+
 SUPERSCRIPT_DIGITS = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹", "0123456789")
 SUBSCRIPT_DIGITS = str.maketrans("₀₁₂₃₄₅₆₇₈₉", "0123456789")
 
@@ -115,10 +117,10 @@ ELEMENTS = frozenset(
     "Br Kr Rb Sr Y Zr Nb Mo Tc Ru Rh Pd Ag Cd In Sn Sb Te I Xe Cs Ba La Ce Pr Nd Pm Sm Eu Gd Tb Dy "
     "Ho Er Tm Yb Lu Hf Ta W Re Os Ir Pt Au Hg Tl Pb Bi Po At Rn D T".split()
 )
-_JLABEL_RE = re.compile(
+_JLABEL_RE = lazy(
     r"^(?P<bonds>[1-6¹²³⁴⁵⁶])?\s?J\s?_?\{?\(?\s?(?P<rest>.*?)\s?\)?\}?$", re.DOTALL
 )
-_PAIR_RE = re.compile(r"^([A-Z][a-z]?)\s?[,\-–−]?\s?([A-Z][a-z]?)$")
+_PAIR_RE = lazy(r"^([A-Z][a-z]?)\s?[,\-–−]?\s?([A-Z][a-z]?)$")
 
 
 @lru_cache(maxsize=512)
@@ -192,7 +194,7 @@ _SOLVENT_KEYS = {
     "cd3no2": "CD3NO2",
     "h2o": "H2O",
 }
-_SOLVENT_SPLIT = re.compile(r"\s?[/+:–]\s?|\s-\s")
+_SOLVENT_SPLIT = lazy(r"\s?[/+:–]\s?|\s-\s")
 
 
 @lru_cache(maxsize=1024)
@@ -218,7 +220,7 @@ def nucleus_symbol(text: str) -> str:
 #: Nucleus implied by a subscripted δ (δH, δC…).
 DELTA_NUCLEUS = {"H": "1H", "C": "13C", "F": "19F", "P": "31P", "B": "11B", "N": "15N"}
 
-_NOTE_RE = re.compile(
+_NOTE_RE = lazy(
     r"^(?:(?:\d\s?)?rotamers?|(?:major|minor)(?:\s(?:rotamer|isomer|diastereomer|conformer|tautomer)s?)?"
     r"|exch(?:angeable|\.)?(?:\s(?:with\s)?D2O)?|D2O[\s\-]exch(?:angeable|\.)?|overlap(?:ped|ping)?(?:\s.*)?"
     r"|obscured(?:\s.*)?|partially\s.*|diastereotopic|conformers?|isomers?|tautomers?|br(?:oad)?\.?"

@@ -6,9 +6,6 @@ import io
 import os
 import stat
 import time
-import struct
-import zipfile
-import zlib
 from dataclasses import dataclass
 
 from .base import ReaderError
@@ -111,6 +108,7 @@ def file_size(path: str | os.PathLike, name: str = "") -> int:
 def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "") -> list[str]:
     """Inspect a zip's central directory (sizes, ratios, encryption) without inflating it;
     returns the member names."""
+    import zipfile
     damaged = "Open it in Word and save it again, or export a fresh copy."
     try:
         with zipfile.ZipFile(io.BytesIO(source) if isinstance(source, bytes) else source) as zf:
@@ -146,6 +144,8 @@ def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "")
 def _inflate_within_claims(source, members, limits: Limits, name: str) -> None:
     """Inflate every member in bounded chunks and stop if it yields more than its entry
     claims: zipfile would inflate a lying member whole before noticing."""
+    import zipfile
+    import struct
     handle = io.BytesIO(source) if isinstance(source, bytes) else open(source, "rb")
     chunk = 256 * 1024
     total = 0
@@ -179,6 +179,8 @@ def _inflate_within_claims(source, members, limits: Limits, name: str) -> None:
 
 
 def _inflated_size(handle, info: zipfile.ZipInfo, chunk: int, name: str) -> int:
+    import zipfile
+    import zlib
     inflater = zlib.decompressobj(-15)
     left, produced = info.compress_size, 0
     while left > 0:

@@ -1,0 +1,73 @@
+"""A lexer scanner that compiles each terminal once per process, for short texts.
+
+Lark's contextual lexer compiles, for every parser state it meets, one alternation of the
+terminals that state accepts; on a one-paragraph file that is most of the start-up time. This
+scanner tries the same terminals in the same order, one compiled pattern each (shared by every
+state), which is exactly what the alternation does ("the first alternative that matches wins").
+It is used for the grammar without fast-path tokens, which reads short texts; tests compare its
+readings with lark's own scanner.
+"""
+
+from __future__ import annotations
+
+import re
+
+_COMPILED: dict[tuple[str, int], re.Pattern] = {}
+
+
+def _compiled(pattern: str, flags: int) -> re.Pattern:
+    key = (pattern, flags)
+    rx = _COMPILED.get(key)
+    if rx is None:
+        rx = _COMPILED[key] = re.compile(pattern, flags)
+    return rx
+
+
+class TerminalScanner:
+    """Stands in for ``lark.lexer.Scanner``: same constructor, ``match`` and ``fullmatch``."""
+
+    def __init__(self, terminals, g_regex_flags, re_, use_bytes):
+        self.terminals = terminals
+        self.allowed_types = {t.name for t in terminals}
+        self._patterns = [(_compiled(t.pattern.to_regexp(), g_regex_flags), t.name) for t in terminals]
+
+    def match(self, text, pos):
+        string, end = text.text, text.end
+        for rx, name in self._patterns:
+            m = rx.match(string, pos, end)
+            if m:
+                return m.group(0), name
+        return None
+
+    def fullmatch(self, text: str):
+        for rx, name in self._patterns:
+            if rx.fullmatch(text):
+                return name
+        return None
+
+
+def install(lark_parser) -> bool:
+    """Make every per-state lexer of ``lark_parser`` use :class:`TerminalScanner`.
+
+    Returns False (and changes nothing) when this lark version is laid out differently."""
+    try:
+        from lark.lexer import BasicLexer, _create_unless
+
+        contextual = lark_parser.parser.lexer
+        lexers = list(contextual.lexers.values()) + [contextual.root_lexer]
+    except (AttributeError, ImportError):
+        return False
+
+    def build(self):
+        terminals, self.callback = _create_unless(self.terminals, self.g_regex_flags, self.re,
+                                                  self.use_bytes)
+        if self.user_callbacks:  # not used by peakproof's grammars; keep lark's own behaviour
+            return BasicLexer._build_scanner(self)
+        return TerminalScanner(terminals, self.g_regex_flags, self.re, self.use_bytes)
+
+    for lexer in lexers:
+        if not isinstance(lexer, BasicLexer) or getattr(lexer, "_scanner", None) is not None:
+            return False
+    for lexer in lexers:
+        lexer._build_scanner = build.__get__(lexer)
+    return True
