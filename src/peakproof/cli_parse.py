@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import sys
 
 from .cli import EXIT_OK, EXIT_USAGE
@@ -35,6 +34,8 @@ def run(args) -> int:
         for line in diagnostic_lines(source, doc.diagnostics, document=doc):
             print(line)
     if args.format == "json":
+        import json
+
         payload = outputs[0] if len(outputs) == 1 else {"documents": outputs}
         json.dump(payload, sys.stdout, ensure_ascii=False, indent=1)
         sys.stdout.write("\n")
