@@ -57,6 +57,11 @@ class InputProblem:
         return {"file": self.path, "error": self.message}
 
 
+def names_several(inputs: Iterable[str]) -> bool:
+    """Whether any input is a folder or a glob (and so needs :func:`expand_inputs`)."""
+    return any(p != "-" and (os.path.isdir(p) or bool(_GLOB_CHARS & set(p))) for p in map(os.fspath, inputs))
+
+
 def expand_inputs(inputs: Iterable[str], recursive: bool = True
                   ) -> tuple[list[str], list[InputProblem]]:  # fmt: skip
     """Files named by ``inputs`` (files, folders, globs), and the inputs that named nothing.

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 import sys
 
 from .cli import EXIT_FINDINGS, EXIT_OK, EXIT_USAGE
@@ -128,16 +129,11 @@ def _settings(args, first_file: str):
     return config
 
 
-import re  # noqa: E402  (kept next to its only use)
-
-
 def _wants_batch(args) -> bool:
     """Folders, globs, --jobs or --jsonl: stream file by file (constant memory, summary table)."""
-    import os
+    from .batch import names_several
 
-    if args.jsonl or args.jobs != 1:
-        return True
-    return any(p != "-" and (os.path.isdir(p) or any(ch in p for ch in "*?[")) for p in args.files)
+    return bool(args.jsonl) or args.jobs != 1 or names_several(args.files)
 
 
 def _batch_check(args, config) -> int:

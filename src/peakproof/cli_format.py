@@ -8,7 +8,6 @@ read back as the input's data, so nothing was written for that file.
 from __future__ import annotations
 
 import difflib
-import os
 import sys
 
 from .cli import EXIT_OK, EXIT_USAGE
@@ -101,10 +100,9 @@ def _run_export(args) -> int:
     from .export import export
     from .safety import write_atomically
 
-    import os
+    from .batch import names_several
 
-    batch = args.jobs != 1 or any(
-        p != "-" and (os.path.isdir(p) or any(ch in p for ch in "*?[")) for p in args.files)
+    batch = args.jobs != 1 or names_several(args.files)
     if batch and args.to == "jsonl":
         return _stream_export(args)
     if batch:  # json and csv gather everything: expand folders and globs, then go on
@@ -201,6 +199,15 @@ def _run_format(args) -> int:
     return status
 
 
+def _internal_error(name: str, exc, counts) -> int:
+    """Say that a rewrite could not be proven safe; nothing is written."""
+    counts["failed"] += 1
+    print(f"peakproof: internal error: {name}: {exc.message}; nothing was written.", file=sys.stderr)
+    if exc.diff:
+        print(exc.diff, file=sys.stderr)
+    return EXIT_INTERNAL
+
+
 def _rank(code: int) -> int:
     return {EXIT_OK: 0, EXIT_WOULD_CHANGE: 1, EXIT_USAGE: 2, EXIT_INTERNAL: 3}.get(code, 2)
 
@@ -258,12 +265,7 @@ def _format_one(path, style, args, check, counts) -> int:
                                       else _line_edits(text, final), style, args, name,
                                       bool(fixes))  # fmt: skip
         except UnsafeFormat as exc:
-            counts["failed"] += 1
-            print(f"peakproof: internal error: {name}: {exc.message}; nothing was written.",
-                  file=sys.stderr)  # fmt: skip
-            if exc.diff:
-                print(exc.diff, file=sys.stderr)
-            return EXIT_INTERNAL
+            return _internal_error(name, exc, counts)
         except (OSError, ValueError) as exc:
             print(f"peakproof: {name}: cannot rewrite the file ({exc}); nothing was written",
                   file=sys.stderr)  # fmt: skip
@@ -303,13 +305,8 @@ def _format_one(path, style, args, check, counts) -> int:
     try:
         written = _write(path, source, text, edits, style, args, name, fixed=bool(fixes))
     except UnsafeFormat as exc:
-        counts["failed"] += 1
         counts["changed"] -= 1
-        print(f"peakproof: internal error: {name}: {exc.message}; nothing was written.",
-              file=sys.stderr)  # fmt: skip
-        if exc.diff:
-            print(exc.diff, file=sys.stderr)
-        return EXIT_INTERNAL
+        return _internal_error(name, exc, counts)
     except (OSError, ValueError) as exc:
         print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
               file=sys.stderr)  # fmt: skip

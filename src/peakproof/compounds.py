@@ -17,10 +17,8 @@ adduct to take away.
 from __future__ import annotations
 
 import re
-from dataclasses import replace
 
 from .lazyre import lazy
-from .model import Block
 from .span import LineIndex
 
 _LABEL_TEXT = r"\d{1,3}[a-z]?['′]?|[IVX]{1,5}[a-z]?|S\d{1,3}[a-z]?"
@@ -50,17 +48,6 @@ def compound_of(text: str, floor: int, start: int, index: LineIndex, analyses=()
     if found is None:
         return None, None, formula
     return found.name, index.span(floor + found.start, floor + found.end), formula
-
-
-def attach_compounds(text: str, blocks: list[Block], index: LineIndex) -> list[Block]:
-    """Fill ``compound`` (label or name) and ``formula`` for each block from the text before it."""
-    out = []
-    floor = 0
-    for block in blocks:
-        compound, c_span, formula = compound_of(text, floor, block.span.start, index, block.analyses)
-        out.append(replace(block, compound=compound, compound_span=c_span, formula=formula))
-        floor = block.span.end
-    return out
 
 
 class _Found:

@@ -42,11 +42,6 @@ class Located:
     suppressed: tuple[str, ...] = ()
 
 
-def locate(text: str) -> list[Located]:
-    """Every data block in ``text``, in order, with its half-open offsets."""
-    return list(iter_locate(text))
-
-
 def iter_locate(text: str):
     """Yield the data blocks of ``text`` one by one (constant memory on long texts)."""
     pos = 0

@@ -18,7 +18,7 @@ from .compounds import compound_of
 from .lazyre import lazy
 from .locate import CORE_START, OTHER_START, iter_locate
 from .model import Block, Document, ElementalAnalysis, MassSpec, OtherItem, Spectrum
-from .repair import Repaired, normalize_for_locating, repair
+from .repair import normalize_for_locating, repair
 from .span import Diagnostic, LineIndex
 from .transform import BlockBuilder, Context, FastPatterns
 
@@ -208,12 +208,13 @@ def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool
         ctx.diagnostics.append(_internal(index, start, end, exc))
     finally:
         builder.ctx = None
-    block = _block(index.span(start, end), raw, items, number, suppressed)
+    spectra, ms, ea, others = _sorted_items(items)
+    compound = c_span = formula = None
     if floor is not None:  # the compound: its label or heading in the text since the last block
-        compound, c_span, formula = compound_of(text, floor, start, index, block.analyses)
-        block = Block(span=block.span, text=raw, spectra=block.spectra, mass_spec=block.mass_spec,
-                      analyses=block.analyses, others=block.others, compound=compound,
-                      compound_span=c_span, formula=formula, index=number, suppressed=suppressed)
+        compound, c_span, formula = compound_of(text, floor, start, index, ea)
+    block = Block(span=index.span(start, end), text=raw, spectra=spectra, mass_spec=ms, analyses=ea,
+                  others=others, compound=compound, compound_span=c_span, formula=formula,
+                  index=number, suppressed=suppressed)
     return block, ctx.diagnostics
 
 
@@ -225,7 +226,8 @@ def _internal(index, start, end, exc) -> Diagnostic:
     )
 
 
-def _block(span, raw, items, number=0, suppressed=()) -> Block:
+def _sorted_items(items) -> tuple[tuple, tuple, tuple, tuple]:
+    """A block's items by kind: spectra, mass spectra, elemental analyses, other items."""
     spectra, ms, ea, others = [], [], [], []
     for item in items:
         if isinstance(item, Spectrum):
@@ -236,8 +238,7 @@ def _block(span, raw, items, number=0, suppressed=()) -> Block:
             ea.append(item)
         elif isinstance(item, OtherItem):
             others.append(item)
-    return Block(span=span, text=raw, spectra=tuple(spectra), mass_spec=tuple(ms),
-                 analyses=tuple(ea), others=tuple(others), index=number, suppressed=suppressed)
+    return tuple(spectra), tuple(ms), tuple(ea), tuple(others)
 
 
 # ---- recovery --------------------------------------------------------------------------------
@@ -282,9 +283,6 @@ def _parse_piece(parser, builder, ctx, offset, piece, start):
     finally:
         ctx.parsed = ctx.text
     return result if isinstance(result, list) else [result]
-
-
-_SIGNAL_SEP = lazy(r"[,;]")
 
 
 def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:

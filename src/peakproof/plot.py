@@ -10,7 +10,6 @@ window, no global backend change).
 
 from __future__ import annotations
 
-import math
 
 INK = "#1d2540"
 FIRST_ORDER = "#d1495b"

@@ -119,10 +119,11 @@ def _j_text(value: str) -> str:
 
 
 @lru_cache(maxsize=1024)
-def _count_value(count_text: str) -> tuple[float, str]:
-    """``"2 × 3H"`` → (6.0, "H")."""
+def _count_value(count_text: str) -> tuple[float, str, bool]:
+    """``"2 × 3H"`` → (6.0, "H", False); ``"1H each"`` → (1.0, "H", True)."""
     cm = _COUNT.match(" ".join(count_text.split()))
-    return number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1), cm.group("nuc")
+    value = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
+    return value, cm.group("nuc"), bool(cm.group("each"))
 
 
 class FastPatterns:
@@ -146,21 +147,14 @@ class FastPatterns:
             self.ms_gap = re.compile(pattern_of("WS").join(("(?:", ")?")))
         except KeyError:
             pass
-        self.direct = re.compile(
-            f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?"
+        details = (
             f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
             f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
             f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
             f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
         )
-        self.direct_groups = ("s", "s2", "m", "jl", "j1", "j2", "j3", "c")
-        self.direct_index = dict(self.direct.groupindex)
-        self.common = re.compile(
-            f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
-            f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
-            f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
-            f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
-        )
+        self.common = re.compile(details)  # the commonest details, on their own
+        self.direct = re.compile(f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?" + details)
         try:
             whole = pattern_of("SIGNALS")
         except KeyError:  # the grammar without its fast path (used by tests)
@@ -249,10 +243,8 @@ class BlockBuilder(Transformer):
     def count(self, c):
         tok = c[0]
         text = tok.value.strip()
-        m = _COUNT.match(" ".join(text.split()))
-        value = number(m.group("n")) * (int(m.group("mult")) if m.group("mult") else 1)
-        return ("count", value, m.group("nuc"), text, bool(m.group("each")),
-                tok.start_pos, _stripped_end(tok))
+        value, nucleus, each = _count_value(text)
+        return ("count", value, nucleus, text, each, tok.start_pos, _stripped_end(tok))
 
     def free(self, c):
         tok = c[0]
@@ -285,20 +277,10 @@ class BlockBuilder(Transformer):
         return (mult, tuple(couplings), count, assignment, notes, c[0].start_pos, c[-1].end_pos)
 
     def entry(self, c):
-        if isinstance(c[0], Token):  # the fast-path tokens
-            tok = c[0]
-            if tok.type == "SIGNALS":
-                return self._fast_entries(tok)
-            return self._fast_entry(tok)
-        shift = c[0]
-        details = None
-        ppm = False
-        for item in c[1:]:
-            if isinstance(item, Token):
-                ppm = ppm or item.type == "PPM"
-            else:
-                details = item
-        return (shift, details)
+        if isinstance(c[0], Token):  # SIGNALS, the fast-path token: several entries
+            return self._fast_entries(c[0])
+        details = next((item for item in c[1:] if not isinstance(item, Token)), None)
+        return (c[0], details)
 
     def _fast_entries(self, tok: Token) -> list:
         """A SIGNALS token: consecutive fast-path signals, split with their own pattern."""
@@ -331,33 +313,14 @@ class BlockBuilder(Transformer):
     def _direct_signal(self, d):
         """The commonest signal, ``7.26 (d, J = 8.4 Hz, 2H)``, straight from one match; None when
         it needs the general path (a count "each", a "2 × d", an AB pattern)."""
-        s1, s2, written, label, j1, j2, j3, count_text = d.group(*self.fast.direct_groups)
-        name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
-        if multiplier != 1 or kind == "AB" or "each" in count_text:
+        _, _, _, _, kind, multiplier = multiplicity_parts(d.group("m"))
+        if multiplier != 1 or kind == "AB" or "each" in d.group("c"):
             return None
-        regs = d.regs
-        ix = self.fast.direct_index
+        mult, couplings, count, _, _, d_start, d_end = self._common_details(d, 0)
         span = self.ctx.span
-        s_start = regs[ix["s"]][0]
-        s_end = regs[ix["s2"]][1] if s2 is not None else regs[ix["s"]][1]
-        m_reg = regs[ix["m"]]
-        mult = Multiplicity(name, span(*m_reg), written, components, broad, apparent, kind, 1)
-        if j1 is None:
-            couplings = ()
-        else:
-            bonds, nuclei, lab = coupling_label(label)
-            label_start = regs[ix["jl"]][0] + len(label) - len(label.lstrip())
-            first = Coupling(number(j1), span(label_start, regs[ix["j1"]][1]), _j_text(j1),
-                             nuclei, bonds, lab)
-            if j2 is None:
-                couplings = (first,)
-            elif j3 is None:
-                couplings = (first, Coupling(number(j2), span(*regs[ix["j2"]]), _j_text(j2)))
-            else:
-                couplings = (first, Coupling(number(j2), span(*regs[ix["j2"]]), _j_text(j2)),
-                             Coupling(number(j3), span(*regs[ix["j3"]]), _j_text(j3)))
-        n, nucleus = _count_value(count_text)
-        d_start, d_end = regs[ix["open"]][0], regs[0][1]
+        s1, s2 = d.group("s", "s2")
+        s_start = d.start("s")
+        s_end = d.end("s2") if s2 is not None else d.end("s")
         return Signal(
             span(s_start, d_end),
             number(s1) if s2 is None else None,
@@ -366,10 +329,10 @@ class BlockBuilder(Transformer):
             span(s_start, s_end),
             mult,
             couplings,
-            n,
-            nucleus,
-            count_text,
-            span(*regs[ix["c"]]),
+            count[1],
+            count[2],
+            count[3],
+            span(count[5], count[6]),
             None,
             (),
             span(d_start, d_end),
@@ -377,7 +340,7 @@ class BlockBuilder(Transformer):
         )
 
     def _fast_entry(self, tok: Token):
-        """Split a SIGNAL or BARE_SHIFT token exactly as the token-by-token rules would."""
+        """Split one piece of a SIGNALS token exactly as the token-by-token rules would."""
         fast = self.fast
         text = tok.value
         base = tok.start_pos
@@ -427,12 +390,10 @@ class BlockBuilder(Transformer):
                     text=value.replace("\u2212", "-").replace(",", "."),
                     nuclei=nuclei, bonds=bonds, label=label))
                 continue
-            cm = _COUNT.match(" ".join(item.split())) if fast.count.fullmatch(item) else None
-            if cm:
+            if fast.count.fullmatch(item):
                 if count is None:
-                    value = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
-                    count = ("count", value, cm.group("nuc"), item, bool(cm.group("each")),
-                             at, at + len(item))
+                    value, nucleus, each = _count_value(item)
+                    count = ("count", value, nucleus, item, each, at, at + len(item))
                 else:
                     notes.append(item)
                 continue
@@ -447,34 +408,27 @@ class BlockBuilder(Transformer):
         return (shift, (mult, tuple(couplings), count, assignment, notes, base + paren, base + close + 1))
 
     def _common_details(self, m, base):
-        """Details of the commonest shape, ``(dd, J = 8.4, 2.1 Hz, 1H)``, read in one match."""
+        """Details of the commonest shape, ``(dd, J = 8.4, 2.1 Hz, 1H)``, read in one match (of
+        ``FastPatterns.common`` or ``.direct``, which share the group names); offsets + ``base``."""
         span = self.ctx.span
-        written = m.group("m")
+        written, label, j1, j2, j3, count_text = m.group("m", "jl", "j1", "j2", "j3", "c")
         name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
-        mult = Multiplicity(name=name, span=span(base + m.start("m"), base + m.end("m")),
-                            written=written, components=components, broad=broad,
-                            apparent=apparent, kind=kind, multiplier=multiplier)
-        couplings = []
-        if m.group("j1") is not None:
-            label = m.group("jl")
+        mult = Multiplicity(name, span(base + m.start("m"), base + m.end("m")), written,
+                            components, broad, apparent, kind, multiplier)
+        couplings: tuple[Coupling, ...] = ()
+        if j1 is not None:
             bonds, nuclei, lab = coupling_label(label)
             label_start = base + m.start("jl") + len(label) - len(label.lstrip())
-            value = m.group("j1")
-            couplings.append(Coupling(value=number(value), span=span(label_start, base + m.end("j1")),
-                                      text=value.replace("\u2212", "-").replace(",", "."),
-                                      nuclei=nuclei, bonds=bonds, label=lab))
-            for g in ("j2", "j3"):
-                value = m.group(g)
+            couplings = (Coupling(number(j1), span(label_start, base + m.end("j1")), _j_text(j1),
+                                  nuclei, bonds, lab),)
+            for g, value in (("j2", j2), ("j3", j3)):
                 if value is None:
                     break
-                couplings.append(Coupling(value=number(value), span=span(base + m.start(g), base + m.end(g)),
-                                          text=value.replace("\u2212", "-").replace(",", ".")))
-        item = m.group("c")
-        cm = _COUNT.match(" ".join(item.split()))
-        value = number(cm.group("n")) * (int(cm.group("mult")) if cm.group("mult") else 1)
-        count = ("count", value, cm.group("nuc"), item, bool(cm.group("each")),
-                 base + m.start("c"), base + m.end("c"))
-        return (mult, tuple(couplings), count, [], [], base + m.start("open"), base + m.end(0))
+                couplings += (Coupling(number(value), span(base + m.start(g), base + m.end(g)),
+                                       _j_text(value)),)
+        n, nucleus, each = _count_value(count_text)
+        count = ("count", n, nucleus, count_text, each, base + m.start("c"), base + m.end("c"))
+        return (mult, couplings, count, [], [], base + m.start("open"), base + m.end(0))
 
     def signal_list(self, c):
         entries = []

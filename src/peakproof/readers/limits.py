@@ -178,9 +178,10 @@ def _inflate_within_claims(source, members, limits: Limits, name: str) -> None:
             handle.close()
 
 
-def _inflated_size(handle, info: zipfile.ZipInfo, chunk: int, name: str) -> int:
-    import zipfile
+def _inflated_size(handle, info, chunk: int, name: str) -> int:
+    """Bytes a deflated member (a ``zipfile.ZipInfo``) really inflates to, read in chunks."""
     import zlib
+
     inflater = zlib.decompressobj(-15)
     left, produced = info.compress_size, 0
     while left > 0:

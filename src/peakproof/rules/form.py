@@ -260,7 +260,19 @@ class DuplicateShift(Rule):
                 )
 
 
-class MissingFrequency(Rule):
+class _MissingHeaderField(Rule):
+    """A header item every spectrum should state; subclasses name the Spectrum field."""
+
+    header_field = ""
+
+    def check(self, block, ctx):
+        for s in block.spectra:
+            if getattr(s, self.header_field) is None:
+                yield self.finding(s.nucleus_span or s.header_span or s.span, nucleus=s.nucleus,
+                                   data={"nucleus": s.nucleus})
+
+
+class MissingFrequency(_MissingHeaderField):
     """An NMR header without the spectrometer frequency."""
 
     name = "missing-frequency"
@@ -274,14 +286,10 @@ class MissingFrequency(Rule):
         ("pass", "1H NMR (400 MHz, CDCl3) δ 3.81 (s, 3H)."),
     )
 
-    def check(self, block, ctx):
-        for s in block.spectra:
-            if s.frequency_mhz is None:
-                yield self.finding(s.nucleus_span or s.header_span or s.span, nucleus=s.nucleus,
-                                   data={"nucleus": s.nucleus})
+    header_field = "frequency_mhz"
 
 
-class MissingSolvent(Rule):
+class MissingSolvent(_MissingHeaderField):
     """An NMR header without the solvent."""
 
     name = "missing-solvent"
@@ -295,11 +303,7 @@ class MissingSolvent(Rule):
         ("pass", "1H NMR (400 MHz, CDCl3) δ 3.81 (s, 3H)."),
     )
 
-    def check(self, block, ctx):
-        for s in block.spectra:
-            if s.solvent is None:
-                yield self.finding(s.nucleus_span or s.header_span or s.span, nucleus=s.nucleus,
-                                   data={"nucleus": s.nucleus})
+    header_field = "solvent"
 
 
 class OverPreciseJ(Rule):
