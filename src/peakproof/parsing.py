@@ -89,7 +89,7 @@ def _builder_and_parser(fast: bool = True) -> tuple[BlockBuilder, Lark]:
 def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
     """The LALR parser with the transformer inside, built once and cached on disk.
 
-    ``fast=False`` drops the fast-path tokens (SIGNAL, BARE_SHIFT) so tests can check that both
+    ``fast=False`` drops the fast-path tokens (SIGNALS, HEADER, MS_FAST) so tests can check that both
     ways of reading give the same model.
     """
     # The cache file is named after the grammar files' contents (crc32 and length: hashlib would
