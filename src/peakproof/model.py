@@ -1,6 +1,8 @@
 """The parsed model: document → blocks → spectra → signals → couplings.
 
-Small frozen classes holding plain data; every node keeps its exact :class:`Span`
+Small frozen classes holding plain data (named tuples: a parse builds tens of thousands of them,
+and a tuple is built in a fraction of a frozen dataclass's time; equality also compares the
+class, as a dataclass's would, and ``_replace`` makes changed copies); every node keeps its exact :class:`Span`
 in the original text.  ``to_json()`` gives the published JSON shape (see
 ``schema/parse.schema.json``); ``data()`` gives the same without positions, which
 is what "the same data" means for round trips and the formatter's safety check.
@@ -8,9 +10,8 @@ is what "the same data" means for round trips and the formatter's safety check.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from functools import lru_cache
-from typing import Any
+from typing import Any, NamedTuple
 
 from .span import Diagnostic, Span
 
@@ -18,8 +19,7 @@ from .span import Diagnostic, Span
 PARTNERS = {"d": 1, "t": 2, "q": 3, "quint": 4, "sext": 5, "sept": 6, "oct": 7, "non": 8}
 
 
-@dataclass(frozen=True, slots=True)
-class Coupling:
+class Coupling(NamedTuple):
     """One coupling constant as written: ``J = 8.4``, ``3J(H,H) = 7.1``, ``2JC–F = 21``."""
 
     value: float
@@ -51,8 +51,7 @@ class Coupling:
         return (self.text, self.nuclei, self.bonds, self.label)
 
 
-@dataclass(frozen=True, slots=True)
-class Multiplicity:
+class Multiplicity(NamedTuple):
     """The apparent multiplet pattern, normalised.
 
     ``name`` is the normalised text (``"dd"``, ``"br s"``, ``"app t"``, ``"m"``,
@@ -92,8 +91,7 @@ class Multiplicity:
         return (self.name, self.multiplier)
 
 
-@dataclass(frozen=True, slots=True)
-class Signal:
+class Signal(NamedTuple):
     """One reported resonance: a shift or range with its details."""
 
     span: Span
@@ -158,8 +156,7 @@ class Signal:
         )
 
 
-@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
-class Spectrum:
+class Spectrum(NamedTuple):
     """One NMR spectrum's header and signal list."""
 
     span: Span
@@ -209,8 +206,7 @@ class Spectrum:
         )
 
 
-@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
-class MassSpec:
+class MassSpec(NamedTuple):
     """A high-resolution mass-spectrometry record."""
 
     span: Span
@@ -241,8 +237,7 @@ class MassSpec:
         return (self.method, self.ion, self.formula, self.calcd_text, self.found_text)
 
 
-@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
-class ElementalAnalysis:
+class ElementalAnalysis(NamedTuple):
     """``Anal. Calcd for C10H12O2: C, 73.15; H, 7.37. Found: C, 73.02; H, 7.41.``"""
 
     span: Span
@@ -265,8 +260,7 @@ class ElementalAnalysis:
         return (self.formula, self.calcd, self.found)
 
 
-@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
-class OtherItem:
+class OtherItem(NamedTuple):
     """A non-NMR item of the paragraph (IR, mp, Rf, yield, rotation…), kept as text."""
 
     span: Span
@@ -280,8 +274,7 @@ class OtherItem:
         return (self.kind, " ".join(self.text.split()))
 
 
-@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
-class Block:
+class Block(NamedTuple):
     """One characterization paragraph (usually one compound)."""
 
     span: Span
@@ -327,8 +320,7 @@ class Block:
         )
 
 
-@dataclass(frozen=True)  # few instances: no slots, cheaper to define at import
-class Document:
+class Document(NamedTuple):
     """A whole text with its blocks and the diagnostics met while reading it."""
 
     text: str
@@ -364,6 +356,23 @@ def _decimals(number_text: str) -> int:
     if "." not in text:
         return 0
     return len(text) - text.index(".") - 1
+
+
+def _same_class_eq(self, other: object) -> bool:
+    return type(other) is type(self) and tuple.__eq__(self, other)
+
+
+def _same_class_ne(self, other: object) -> bool:
+    return type(other) is not type(self) or tuple.__ne__(self, other)
+
+
+for _record in (Coupling, Multiplicity, Signal, Spectrum, MassSpec, ElementalAnalysis, OtherItem,
+                Block, Document):
+    # A Signal is not equal to a plain tuple (or to another record) holding the same values.
+    _record.__eq__ = _same_class_eq
+    _record.__ne__ = _same_class_ne
+    _record.__hash__ = tuple.__hash__
+del _record
 
 
 __all__ = [

@@ -306,10 +306,8 @@ def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:
             signals.extend(_parse_piece(parser, builder, ctx, offset + s, chunk, "entry_only"))
         except UnexpectedInput as exc:
             _syntax_error(ctx, exc, offset + s, chunk, skipped=True)
-    from dataclasses import replace
-
     last = signals[-1].span if signals else head.span
-    return replace(head, signals=tuple(signals), span=ctx.index.span(head.span.start, last.end))
+    return head._replace(signals=tuple(signals), span=ctx.index.span(head.span.start, last.end))
 
 
 _HEADER_RE = lazy(
