@@ -176,6 +176,7 @@ class FastPatterns:
         )
         self.freq = re.compile(pattern_of("FREQ"))
         self.temp = re.compile(pattern_of("TEMP"))
+        self.headers: dict[str, tuple] = {}  # HEADER token text -> what it says (see _header_reading)
 
 
 class BlockBuilder(Transformer):
@@ -540,15 +541,29 @@ class BlockBuilder(Transformer):
     def spectrum(self, c):
         return self._spectrum(c, signals=None)
 
-    def _split_header(self, tok: Token):
-        """A HEADER token as the SPEC_HEAD token and condition tokens the slow rules would give."""
+    def _header_reading(self, text: str) -> tuple:
+        """What a HEADER token's text says, with offsets relative to its start.  Computed once per
+        distinct header (an SI repeats a handful of them) and kept in ``FastPatterns.headers``."""
         fast = self.fast
-        text = tok.value
-        base = tok.start_pos
+        hit = fast.headers.get(text)
+        if hit is not None:
+            return hit
         m = fast.spec_head.match(text)
-        head = Token("SPEC_HEAD", m.group(0), start_pos=base, end_pos=base + m.end())
-        open_at = text.index("(", m.end())
-        depth, close_at = 0, open_at
+        head_end = m.end()
+        lead = _LEAD.match(text).end()
+        hm = _SPEC_HEAD.match(text)
+        nucleus = nucleus_symbol(hm.group("mass")) + hm.group("el")
+        dec = hm.group("dec") or hm.group("dec2")
+        decoupled = tuple(
+            nucleus_symbol(d) for d in re.split(r"\s*,\s*", dec.strip()) if d.strip()
+        ) if dec else ()
+        nucleus_end = len(text[:head_end].rstrip())
+        note = None
+        if hm.group("gap") or (dec and " " in dec.strip()):
+            note = (f"read '{' '.join(text[lead:head_end].split())}' as {nucleus} NMR "
+                    "(a superscript lost its place)", lead, nucleus_end)
+        open_at = text.index("(", head_end)
+        depth, close_at = 0, open_at  # a solvent may hold parentheses: "(CD3)2SO"
         for close_at in range(open_at, len(text)):
             ch = text[close_at]
             if ch == "(":
@@ -557,25 +572,62 @@ class BlockBuilder(Transformer):
                 depth -= 1
                 if depth == 0:
                     break
-        conditions = []
+        freq = freq_at = solvent = solvent_at = temperature = None
         pos = open_at + 1
         for raw in re.split(r"[,;]", text[open_at + 1 : close_at]):
-            lead = len(raw) - len(raw.lstrip())
             item = raw.strip()
-            at = base + pos + lead
+            at = pos + len(raw) - len(raw.lstrip())
             pos += len(raw) + 1
-            kind = "FREQ" if fast.freq.fullmatch(item) else "TEMP" if fast.temp.fullmatch(item) else "SOLVENT"
-            conditions.append([Token(kind, item, start_pos=at, end_pos=at + len(item))])
-        return head, conditions
+            if fast.freq.fullmatch(item):
+                freq, freq_at = number(item[: item.index("M")].strip()), (at, at + len(item))
+            elif fast.temp.fullmatch(item):
+                t = number(re.match(r"[+\-\u2212]?\d+(?:[.,]\d+)?", item).group(0))
+                temperature = t if item.endswith("K") else round(t + 273.15, 2)
+            else:
+                solvent, solvent_at = item, (at, at + len(item))
+        hit = (lead, nucleus, decoupled, note, freq, freq_at, solvent,
+               solvent_key(solvent) if solvent else None, solvent_at, temperature,
+               nucleus_end, len(text.rstrip()))
+        if len(fast.headers) < 4096:
+            fast.headers[text] = hit
+        return hit
+
+    def _header_spectrum(self, tok: Token, signals: list) -> Spectrum:
+        """A spectrum whose header came as one HEADER token (the fast path)."""
+        (lead, nucleus, decoupled, note, freq, freq_at, solvent, solvent_norm, solvent_at,
+         temperature, nucleus_end, header_end) = self._header_reading(tok.value)
+        ctx = self.ctx
+        span = ctx.span
+        base = tok.start_pos
+        if note is not None:
+            ctx.note("repair-superscript", note[0], base + note[1], base + note[2])
+        start = base + lead
+        end = base + header_end
+        last = self._unspan(signals[-1].span.end) if signals else end
+        return Spectrum(
+            span(start, last),
+            nucleus,
+            tuple(signals),
+            decoupled,
+            freq,
+            span(base + freq_at[0], base + freq_at[1]) if freq_at else None,
+            solvent,
+            solvent_norm,
+            span(base + solvent_at[0], base + solvent_at[1]) if solvent_at else None,
+            temperature,
+            None,
+            (),
+            span(start, end),
+            ctx.text[start:end],
+            span(start, base + nucleus_end),
+        )
 
     def _spectrum(self, c, signals):
         head = c[0]
+        if head.type == "HEADER":
+            return self._header_spectrum(head, c[1] if len(c) > 1 else [])
         conditions: list = []
         delta = None
-        if head.type == "HEADER":
-            header_tok = head
-            head, conditions = self._split_header(head)
-            c = [header_tok, *c[1:]]
         for item in c[1:]:
             if isinstance(item, tuple) and len(item) == 2 and isinstance(item[0], list):
                 conditions, delta = item
