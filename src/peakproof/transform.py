@@ -144,7 +144,9 @@ class FastPatterns:
             self.ms_part = re.compile("|".join(
                 f"(?P<{name}>{pattern_of(name)})" for name in
                 ("FOUND", "ION", "CALCD", "MZ", "METHOD_PAREN", "ION_FORMULA", "NUMBER", "COLON", "MS_PUNCT")))
-            self.ms_gap = re.compile(pattern_of("WS").join(("(?:", ")?")))
+            # Possessive white space, then one part: what a gap match and a part match would give.
+            self.ms_gap_part = re.compile(
+                f"(?>(?:{pattern_of('WS')})?)(?:{self.ms_part.pattern})")
         except KeyError:
             pass
         details = (
@@ -732,20 +734,20 @@ class BlockBuilder(Transformer):
         return bisect_left(offsets, target)
 
     # ---- mass spectra ---------------------------------------------------------------------
-    def _split_ms(self, tok: Token) -> list[Token]:
+    def _split_ms(self, tok: Token) -> list:
         """An MS_FAST token as the MS_START and part tokens the lexer would have given."""
-        fast = self.fast
         text = self.ctx.parsed
-        m = fast.ms_start.match(text, tok.start_pos)
+        m = self.fast.ms_start.match(text, tok.start_pos)
         tokens = [_Piece("MS_START", m.group(0), m.start(), m.end())]
         pos, end = m.end(), tok.end_pos
-        gap, part = fast.ms_gap, fast.ms_part
+        gap_part = self.fast.ms_gap_part
+        append = tokens.append
         while pos < end:
-            pos = gap.match(text, pos, end).end()
-            if pos >= end:
+            p = gap_part.match(text, pos, end)
+            if p is None:  # only white space is left
                 break
-            p = part.match(text, pos, end)
-            tokens.append(_Piece(p.lastgroup, p.group(0), pos, p.end()))
+            kind = p.lastgroup
+            append(_Piece(kind, p.group(kind), p.start(kind), p.end()))
             pos = p.end()
         return tokens
 
@@ -754,10 +756,7 @@ class BlockBuilder(Transformer):
         if c[0].type == "MS_FAST":
             c = [*self._split_ms(c[0]), *c[1:]]
         head = c[0]
-        method = None
-        m = _METHOD_IN_HEAD.search(head.value)
-        if m:
-            method = m.group(1) + (f"-{m.group(2)}" if m.group(2) else "") + m.group(3)
+        method = _method_in_head(head.value)
         ion = ion_written = ion_span = None
         formula = formula_span = None
         calcd = found = None
@@ -774,7 +773,7 @@ class BlockBuilder(Transformer):
             elif kind == "ION":
                 if ion is None:
                     ion_written = tok.value.strip()
-                    ion = ion_text(ion_written)
+                    ion = _ion_text(ion_written)
                     ion_span = ctx.span(tok.start_pos, _stripped_end(tok))
             elif kind == "CALCD":
                 mode = "calcd"
@@ -792,10 +791,9 @@ class BlockBuilder(Transformer):
                     calcd, calcd_text, calcd_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
                 elif mode is None and found is None:
                     found, found_text, found_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
+        last = c[-1]
         return MassSpec(
-            span=ctx.span(_lead(head), self._last_pos([t if isinstance(t, Token) else
-                                                        Token(t.type, t.value, start_pos=t.start_pos)
-                                                        for t in c[-1:]])),
+            span=ctx.span(_lead(head), last.start_pos + len(last.value.rstrip())),
             method=method,
             ion=ion,
             ion_written=ion_written,
@@ -854,19 +852,42 @@ class BlockBuilder(Transformer):
 
 def _bare_formula(tok: Token, keep_charge: bool = False) -> tuple[str, int, int]:
     """The formula inside ``[C12H14O3Na]+`` or ``C12H15O3+``, with its offsets."""
-    value = tok.value.rstrip()
-    start = tok.start_pos
-    text = value
+    text, lead = _formula_cut(tok.value, keep_charge)
+    start = tok.start_pos + lead
+    return text, start, start + len(text)
+
+
+_CHARGE_END = re.compile(r"(?:\d?[+\-−⁺⁻]|[•·])+$")
+_ISOTOPE_LABEL = re.compile(r"^\d+[A-Z]")
+
+
+@lru_cache(maxsize=1024)
+def _formula_cut(value: str, keep_charge: bool) -> tuple[str, int]:
+    """The formula part of an ION_FORMULA token's text and where it starts in it."""
+    text = value.rstrip()
+    lead = 0
     if not keep_charge:
-        text = re.sub(r"(?:\d?[+\-−⁺⁻]|[•·])+$", "", text) if not text.endswith("]") else text
+        text = _CHARGE_END.sub("", text) if not text.endswith("]") else text
         if text.startswith("[") and "]" in text:
             close = text.rfind("]")
             inner = text[1:close]
-            if not re.match(r"^\d+[A-Z]", inner):  # not an isotope label such as [13C]
+            if not _ISOTOPE_LABEL.match(inner):  # not an isotope label such as [13C]
                 text = inner
-                start += 1
-        text = re.sub(r"(?:\d?[+\-−⁺⁻]|[•·])+$", "", text)
-    return text, start, start + len(text)
+                lead = 1
+        text = _CHARGE_END.sub("", text)
+    return text, lead
+
+
+@lru_cache(maxsize=256)
+def _method_in_head(head: str) -> str | None:
+    """The ionisation method written in an MS item's start (``HRMS-ESI`` → ``ESI``)."""
+    m = _METHOD_IN_HEAD.search(head)
+    if not m:
+        return None
+    return m.group(1) + (f"-{m.group(2)}" if m.group(2) else "") + m.group(3)
+
+
+_ion_text = lru_cache(maxsize=256)(ion_text)
 
 
 _OTHER_KINDS = [
