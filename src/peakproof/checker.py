@@ -8,11 +8,11 @@ severity overrides come from :class:`~peakproof.config.Config`.
 
 from __future__ import annotations
 
-import gc
 
 from dataclasses import dataclass, field
 from typing import Any
 
+from .collector import collector_paused
 from .config import Config
 from .span import Diagnostic, LineIndex
 
@@ -41,13 +41,8 @@ def check_document(document, config: Config | None = None, formula: str | None =
     """Findings plus the coupling networks; ``strict`` lets a failing rule raise (for tests)."""
     # As in the parser: the findings have no reference cycles, and the collector's full scans of
     # a large parsed document would cost more than the rules.
-    enabled = gc.isenabled()
-    gc.disable()
-    try:
+    with collector_paused():
         return _check_document(document, config, formula, strict)
-    finally:
-        if enabled:
-            gc.enable()
 
 
 def _check_document(document, config, formula, strict) -> CheckResult:

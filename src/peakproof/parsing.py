@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import gc
 import os
 import re
 import tempfile
@@ -14,6 +13,7 @@ from pathlib import Path
 from lark import Lark
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
+from .collector import collector_paused
 from .compounds import compound_of
 from .lazyre import lazy
 from .locate import CORE_START, OTHER_START, iter_locate
@@ -165,11 +165,7 @@ def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool | None 
     index = index or LineIndex(text)
     fast = _choose_fast(text, fast)
     view = normalize_for_locating(text)
-    # The model has no reference cycles: pausing the cyclic collector while building tens of
-    # thousands of small objects saves its repeated full scans.
-    gc_was_enabled = gc.isenabled()
-    gc.disable()
-    try:
+    with collector_paused():  # the model has no reference cycles (see collector.py)
         floor = 0
         for i, located in enumerate(iter_locate(view.text)):
             start, end = view.original(located.start), view.original_end(located.end)
@@ -177,9 +173,6 @@ def iter_blocks(text: str, *, index: LineIndex | None = None, fast: bool | None 
                                        suppressed=located.suppressed, floor=floor)
             floor = end
             yield block, diags
-    finally:
-        if gc_was_enabled:
-            gc.enable()
 
 
 def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool = True,
