@@ -86,7 +86,10 @@ def _reach_back(text: str, core: int, floor: int) -> int:
             return start
 
 
-_SIGNIFICANT = re.compile(r"[()\[\]{}\n.]")
+# The characters that matter for a block's end; a bracketed group without brackets or line
+# breaks inside leaves the depth as it was, so it is passed in one step, and so is a full stop
+# followed by anything but white space (a decimal point, "m.p."), which never ends a block.
+_SIGNIFICANT = re.compile(r"\([^()\[\]{}\n]*\)|\[[^()\[\]{}\n]*\]|\{[^()\[\]{}\n]*\}|[()\[\]{}\n]|\.(?!\S)")
 
 
 def _block_end(text: str, start: int) -> int:
@@ -96,6 +99,8 @@ def _block_end(text: str, start: int) -> int:
     stop = n
     for m in _SIGNIFICANT.finditer(text, start):
         i = m.start()
+        if m.end() - i > 1:
+            continue  # a closed group
         ch = text[i]
         if ch in "([{":
             depth += 1
