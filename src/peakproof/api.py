@@ -8,13 +8,14 @@ from __future__ import annotations
 
 import os
 import sys
-from dataclasses import dataclass
+from typing import NamedTuple
 
 from .model import Document
+from .records import compared_by_class
 
 
-@dataclass(frozen=True)
-class Source:
+@compared_by_class
+class Source(NamedTuple):
     """A document's text as handed to the parser, and how to locate offsets in the original."""
 
     text: str

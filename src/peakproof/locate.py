@@ -8,7 +8,9 @@ the last data item: a blank line, a heading, or a full stop followed by a senten
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from typing import NamedTuple
+
+from .records import compared_by_class
 
 _SUP = "\u00b9\u00b2\u00b3\u2070\u2074-\u2079"
 CORE_START = re.compile(
@@ -33,8 +35,8 @@ _LOOKS_LIKE_DATA = re.compile(r".{0,120}?(?:[δ=]|\bd\s*[-−+]?\d|[-−+]?\d+(?
 MARKER = re.compile(r"peakproof:\s*ignore\s+([A-Za-z0-9_\-]+(?:\s*,\s*[A-Za-z0-9_\-]+)*)")
 
 
-@dataclass(frozen=True, slots=True)
-class Located:
+@compared_by_class
+class Located(NamedTuple):
     """A block's offsets in the document, and what the writer said about it."""
 
     start: int

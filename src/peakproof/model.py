@@ -1,8 +1,7 @@
 """The parsed model: document → blocks → spectra → signals → couplings.
 
-Small frozen classes holding plain data (named tuples: a parse builds tens of thousands of them,
-and a tuple is built in a fraction of a frozen dataclass's time; equality also compares the
-class, as a dataclass's would, and ``_replace`` makes changed copies); every node keeps its exact :class:`Span`
+Small frozen classes holding plain data (named tuples compared by class, see ``records.py``;
+``_replace`` makes changed copies); every node keeps its exact :class:`Span`
 in the original text.  ``to_json()`` gives the published JSON shape (see
 ``schema/parse.schema.json``); ``data()`` gives the same without positions, which
 is what "the same data" means for round trips and the formatter's safety check.
@@ -13,12 +12,14 @@ from __future__ import annotations
 from functools import lru_cache
 from typing import Any, NamedTuple
 
+from .records import compared_by_class
 from .span import Diagnostic, Span
 
 #: Number of equivalent spin-½ partners each first-order letter stands for (n in n+1).
 PARTNERS = {"d": 1, "t": 2, "q": 3, "quint": 4, "sext": 5, "sept": 6, "oct": 7, "non": 8}
 
 
+@compared_by_class
 class Coupling(NamedTuple):
     """One coupling constant as written: ``J = 8.4``, ``3J(H,H) = 7.1``, ``2JC–F = 21``."""
 
@@ -51,6 +52,7 @@ class Coupling(NamedTuple):
         return (self.text, self.nuclei, self.bonds, self.label)
 
 
+@compared_by_class
 class Multiplicity(NamedTuple):
     """The apparent multiplet pattern, normalised.
 
@@ -91,6 +93,7 @@ class Multiplicity(NamedTuple):
         return (self.name, self.multiplier)
 
 
+@compared_by_class
 class Signal(NamedTuple):
     """One reported resonance: a shift or range with its details."""
 
@@ -156,6 +159,7 @@ class Signal(NamedTuple):
         )
 
 
+@compared_by_class
 class Spectrum(NamedTuple):
     """One NMR spectrum's header and signal list."""
 
@@ -206,6 +210,7 @@ class Spectrum(NamedTuple):
         )
 
 
+@compared_by_class
 class MassSpec(NamedTuple):
     """A high-resolution mass-spectrometry record."""
 
@@ -237,6 +242,7 @@ class MassSpec(NamedTuple):
         return (self.method, self.ion, self.formula, self.calcd_text, self.found_text)
 
 
+@compared_by_class
 class ElementalAnalysis(NamedTuple):
     """``Anal. Calcd for C10H12O2: C, 73.15; H, 7.37. Found: C, 73.02; H, 7.41.``"""
 
@@ -260,6 +266,7 @@ class ElementalAnalysis(NamedTuple):
         return (self.formula, self.calcd, self.found)
 
 
+@compared_by_class
 class OtherItem(NamedTuple):
     """A non-NMR item of the paragraph (IR, mp, Rf, yield, rotation…), kept as text."""
 
@@ -274,6 +281,7 @@ class OtherItem(NamedTuple):
         return (self.kind, " ".join(self.text.split()))
 
 
+@compared_by_class
 class Block(NamedTuple):
     """One characterization paragraph (usually one compound)."""
 
@@ -320,6 +328,7 @@ class Block(NamedTuple):
         )
 
 
+@compared_by_class
 class Document(NamedTuple):
     """A whole text with its blocks and the diagnostics met while reading it."""
 
@@ -356,23 +365,6 @@ def _decimals(number_text: str) -> int:
     if "." not in text:
         return 0
     return len(text) - text.index(".") - 1
-
-
-def _same_class_eq(self, other: object) -> bool:
-    return type(other) is type(self) and tuple.__eq__(self, other)
-
-
-def _same_class_ne(self, other: object) -> bool:
-    return type(other) is not type(self) or tuple.__ne__(self, other)
-
-
-for _record in (Coupling, Multiplicity, Signal, Spectrum, MassSpec, ElementalAnalysis, OtherItem,
-                Block, Document):
-    # A Signal is not equal to a plain tuple (or to another record) holding the same values.
-    _record.__eq__ = _same_class_eq
-    _record.__ne__ = _same_class_ne
-    _record.__hash__ = tuple.__hash__
-del _record
 
 
 __all__ = [

@@ -7,9 +7,10 @@ reported later still point at what the user sees.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from typing import NamedTuple
 
 from .lazyre import lazy
+from .records import compared_by_class
 
 # One-for-one substitutions: no offset shift.
 _SPACES = "\u00a0\u2000\u2001\u2002\u2003\u2004\u2005\u2006\u2007\u2008\u2009\u200a\u202f\u205f\u3000"
@@ -32,8 +33,8 @@ _STRAY_DELTA = lazy(
 )
 
 
-@dataclass(frozen=True, slots=True)
-class Repair:
+@compared_by_class
+class Repair(NamedTuple):
     """One kind of repair made in a block: where (original offsets) and what."""
 
     kind: str

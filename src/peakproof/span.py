@@ -4,8 +4,9 @@ from __future__ import annotations
 
 from array import array
 from bisect import bisect_right
-from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, NamedTuple
+
+from .records import compared_by_class
 
 
 class Span:
@@ -141,11 +142,11 @@ class LineIndex:
 SEVERITIES = ("error", "warning", "note")
 
 
-@dataclass(frozen=True, slots=True)
-class Diagnostic:
+@compared_by_class
+class Diagnostic(NamedTuple):
     """One problem at one place: a syntax error, a repair, or a rule's finding.
 
-    ``data`` holds the numbers compared (machine-readable), ``suggestion`` an
+    ``data`` holds the numbers compared (machine-readable, or None), ``suggestion`` an
     optional machine-readable fix: ``{"span": Span, "replacement": str}`` or
     richer structures a rule documents.
     """
@@ -157,7 +158,7 @@ class Diagnostic:
     code: str = ""
     expected: tuple[str, ...] = ()
     hint: str = ""
-    data: dict[str, Any] = field(default_factory=dict)
+    data: dict[str, Any] | None = None  # None when the finding carries no numbers
     suggestion: dict[str, Any] | None = None
 
     def to_json(self) -> dict[str, Any]:
@@ -182,12 +183,10 @@ class Diagnostic:
 
 
 def _jsonable(value: Any) -> Any:
-    if isinstance(value, Span):
+    if hasattr(value, "to_json"):  # spans and model records (which are tuples too)
         return value.to_json()
     if isinstance(value, dict):
         return {str(k): _jsonable(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
         return [_jsonable(v) for v in value]
-    if hasattr(value, "to_json"):
-        return value.to_json()
     return value

@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import re
 from bisect import bisect_right
-from dataclasses import dataclass, field
-from typing import Any, Callable, Hashable
+from typing import Any, Callable, Hashable, NamedTuple
+
+from ..records import compared_by_class
 
 FORMATS = ("txt", "md", "tex", "docx", "pdf")
 
@@ -25,8 +26,8 @@ class ReaderError(ValueError):
         return f"{where}{self.message}.{tail}"
 
 
-@dataclass(frozen=True, slots=True)
-class Location:
+@compared_by_class
+class Location(NamedTuple):
     """A place in the original document, in that format's own terms (all numbers 1-based,
     except ``offset_in_run``, which counts characters from the start of the run's text).
 
@@ -63,7 +64,7 @@ class Location:
         return f"line {self.line}, column {self.column}"
 
     def to_json(self) -> dict[str, Any]:
-        out = {k: getattr(self, k) for k in self.__slots__ if getattr(self, k) is not None}
+        out = {k: v for k, v in zip(self._fields, self) if v is not None}
         if self.format == "docx" and self.paragraph is not None:
             out.setdefault("document_paragraph", self.paragraph)  # outside cells: the same
         return out
@@ -156,18 +157,37 @@ def line_starts(text: str) -> list[int]:
     return [0] + [m.end() for m in _NEWLINE.finditer(text)]
 
 
-@dataclass(frozen=True)
 class SourceText:
-    """Plain Unicode text for the parser, and a way back to the original document.
+    """Plain Unicode text for the parser, and a way back to the original document (read-only).
 
     ``notes`` tells the user about choices the reader made (e.g. an assumed encoding).
     """
 
-    text: str
-    format: str
-    name: str = ""
-    notes: tuple[str, ...] = ()
-    _locator: Callable[[int], Location] = field(default=None, repr=False, compare=False)
+    __slots__ = ("text", "format", "name", "notes", "_locator")
+
+    def __init__(self, text: str, format: str, name: str = "", notes: tuple[str, ...] = (),
+                 locator: Callable[[int], Location] | None = None):
+        for attr, value in zip(self.__slots__, (text, format, name, notes, locator)):
+            object.__setattr__(self, attr, value)
+
+    def __setattr__(self, attr: str, value: object) -> None:
+        raise AttributeError(f"SourceText is read-only (cannot set {attr!r})")
+
+    def __reduce__(self):
+        return (SourceText, (self.text, self.format, self.name, self.notes, self._locator))
+
+    def _key(self) -> tuple:
+        return (self.text, self.format, self.name, self.notes)  # the locator is not compared
+
+    def __eq__(self, other: object) -> bool:
+        return type(other) is SourceText and self._key() == other._key()
+
+    def __hash__(self) -> int:
+        return hash(self._key())
+
+    def __repr__(self) -> str:
+        return (f"SourceText(text={self.text!r}, format={self.format!r}, name={self.name!r}, "
+                f"notes={self.notes!r})")
 
     def locate(self, offset: int) -> Location:
         """Where ``offset`` in :attr:`text` came from in the original file."""

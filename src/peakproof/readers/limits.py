@@ -6,8 +6,9 @@ import io
 import os
 import stat
 import time
-from dataclasses import dataclass
+from typing import NamedTuple
 
+from ..records import compared_by_class
 from .base import ReaderError
 
 MiB = 1024 * 1024
@@ -19,8 +20,8 @@ def _mb(size: float) -> str:
     return f"{size / MiB:.1f} MiB"
 
 
-@dataclass(frozen=True, slots=True)
-class Limits:
+@compared_by_class
+class Limits(NamedTuple):
     """How much a reader may take on; every field can be raised for trusted input."""
 
     max_bytes: int = 50 * MiB
