@@ -304,7 +304,9 @@ def _recover_spectrum(parser, builder, ctx, offset, piece) -> Spectrum | None:
 
 
 _HEADER_RE = lazy(
-    r"^\s*[;,.]?\s*(?:\S+?\s?(?:\{[^{}]*\}|\[[^\]]*\])?\s?-?\s?NMR(?:\s?spectrum)?|δ\s?_?\{?[HCFPBN]\}?)"
+    # "1 H NMR": a lost superscript leaves the mass apart from the element
+    r"^\s*[;,.]?\s*(?:\S+?(?:\s[A-Z][a-z]?)?\s?(?:\{[^{}]*\}|\[[^\]]*\])?\s?-?\s?NMR(?:\s?spectrum)?"
+    r"|δ\s?_?\{?[HCFPBN]\}?)"
 )
 
 
