@@ -102,6 +102,9 @@ _LAST_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)(?=
 _SIGNAL_TAIL = r"(?!\s*ppm)(?:\s*[,;]\s*(?=[\-" "\u2212" r"]?\d))?\s*"
 
 
+_new = tuple.__new__  # a record straight from its fields, in order (the hot paths' constructor)
+
+
 class _Piece(NamedTuple):
     """A token of a fast-path token, with the attributes the callbacks read from lark Tokens."""
 
@@ -153,7 +156,7 @@ class FastPatterns:
             f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
             f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
             f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
-            f",\\s?(?P<c>{pattern_of('COUNT')})\\)"
+            f",\\s?(?P<c>{pattern_of('COUNT')})(?P<close>\\))"
         )
         self.common = re.compile(details)  # the commonest details, on their own
         self.direct = re.compile(f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?" + details)
@@ -171,8 +174,10 @@ class FastPatterns:
             whole = pattern_of("SIGNALS")
             for piece in (_BARE_REST, _LAST_REST, _SIGNAL_TAIL):
                 assert piece in whole, f"grammar/peaks.lark changed: update {piece!r} in transform.py"
-            self.bare = re.compile(f"({num})(?:{_BARE_REST}|{_LAST_REST})")
-            self.tail = re.compile(_SIGNAL_TAIL)
+            # One step of a SIGNALS token: a shift of a plain list (group "b"), tried first as the
+            # lexer's alternation does, or the commonest detailed signal with its separator.
+            self.step = re.compile(f"(?P<b>{num})(?:{_BARE_REST}|{_LAST_REST})"
+                                   f"|{self.direct.pattern}{_SIGNAL_TAIL}")
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
         )
@@ -288,25 +293,25 @@ class BlockBuilder(Transformer):
     def _fast_entries(self, tok: Token) -> list:
         """A SIGNALS token: consecutive fast-path signals, split with their own pattern."""
         fast = self.fast
-        one, direct, bare, tail = fast.one_signal, fast.direct, fast.bare, fast.tail
+        one, step = fast.one_signal, fast.step
         parsed = self.ctx.parsed  # match in context: the token's own lookaheads saw past its end
         pos = tok.start_pos
         end = tok.end_pos
         out = []
         append = out.append
         while pos < end:
-            b = bare.match(parsed, pos)
-            if b is not None:  # a shift of a plain list: the alternatives of SIGNALS are disjoint
-                value = b.group(1)  # left as an entry: a following "(2 × d, 1H each)" may claim it
-                append(((number(value), None, value, pos, b.end(1)), None))
-                pos = b.end()
-                continue
-            d = direct.match(parsed, pos)
+            d = step.match(parsed, pos)
             if d is not None:
+                value = d.group("b")
+                if value is not None:  # a shift of a plain list: the alternatives are disjoint
+                    # left as an entry: a following "(2 × d, 1H each)" may claim it
+                    append(((number(value), None, value, pos, d.end("b")), None))
+                    pos = d.end()
+                    continue
                 signal = self._direct_signal(d)
                 if signal is not None:
                     append(signal)
-                    pos = tail.match(parsed, d.end()).end()
+                    pos = d.end()
                     continue
             m = one.match(parsed, pos)
             append(self._fast_entry(Token("SIGNAL", m.group(0), start_pos=pos)))
@@ -316,15 +321,30 @@ class BlockBuilder(Transformer):
     def _direct_signal(self, d):
         """The commonest signal, ``7.26 (d, J = 8.4 Hz, 2H)``, straight from one match; None when
         it needs the general path (a count "each", a "2 × d", an AB pattern)."""
-        _, _, _, _, kind, multiplier = multiplicity_parts(d.group("m"))
-        if multiplier != 1 or kind == "AB" or "each" in d.group("c"):
+        s1, s2, written, label, j1, j2, j3, count_text = d.group("s", "s2", "m", "jl", "j1", "j2", "j3", "c")
+        name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
+        if multiplier != 1 or kind == "AB" or "each" in count_text:
             return None
-        mult, couplings, count, _, _, d_start, d_end = self._common_details(d, 0)
         span = self.ctx.span
-        s1, s2 = d.group("s", "s2")
+        mult = _new(Multiplicity, (name, span(d.start("m"), d.end("m")), written, components, broad,
+                                   apparent, kind, multiplier))
+        couplings: tuple[Coupling, ...] = ()
+        if j1 is not None:
+            bonds, nuclei, lab = coupling_label(label)
+            label_start = d.start("jl") + len(label) - len(label.lstrip())
+            couplings = (_new(Coupling, (number(j1), span(label_start, d.end("j1")), _j_text(j1),
+                                         nuclei, bonds, lab)),)
+            if j2 is not None:
+                couplings += (_new(Coupling, (number(j2), span(d.start("j2"), d.end("j2")),
+                                              _j_text(j2), None, None, None)),)
+                if j3 is not None:
+                    couplings += (_new(Coupling, (number(j3), span(d.start("j3"), d.end("j3")),
+                                                  _j_text(j3), None, None, None)),)
+        n, nucleus, _ = _count_value(count_text)
         s_start = d.start("s")
-        s_end = d.end("s2") if s2 is not None else d.end("s")
-        return Signal(
+        s_end = d.end("s") if s2 is None else d.end("s2")
+        d_end = d.end("close")
+        return _new(Signal, (
             span(s_start, d_end),
             number(s1) if s2 is None else None,
             None if s2 is None else (number(s1), number(s2)),
@@ -332,15 +352,15 @@ class BlockBuilder(Transformer):
             span(s_start, s_end),
             mult,
             couplings,
-            count[1],
-            count[2],
-            count[3],
-            span(count[5], count[6]),
+            n,
+            nucleus,
+            count_text,
+            span(d.start("c"), d.end("c")),
             None,
             (),
-            span(d_start, d_end),
+            span(d.start("open"), d_end),
             0,
-        )
+        ))
 
     def _fast_entry(self, tok: Token):
         """Split one piece of a SIGNALS token exactly as the token-by-token rules would."""
@@ -431,7 +451,7 @@ class BlockBuilder(Transformer):
                                        _j_text(value)),)
         n, nucleus, each = _count_value(count_text)
         count = ("count", n, nucleus, count_text, each, base + m.start("c"), base + m.end("c"))
-        return (mult, couplings, count, [], [], base + m.start("open"), base + m.end(0))
+        return (mult, couplings, count, [], [], base + m.start("open"), base + m.end("close"))
 
     def signal_list(self, c):
         entries = []
