@@ -17,8 +17,12 @@ _SPACES = "\u00a0\u2000\u2001\u2002\u2003\u2004\u2005\u2006\u2007\u2008\u2009\u2
 _SAME_LENGTH = str.maketrans({**{c: " " for c in _SPACES}, "\u2010": "-", "\u2011": "-", "\t": " "})
 _DELETED = "\u00ad\u200b\u200c\u200d\u2060\ufeff"
 _LIGATURES = {"ﬀ": "ff", "ﬁ": "fi", "ﬂ": "fl", "ﬃ": "ffi", "ﬄ": "ffl", "ﬅ": "st", "ﬆ": "st"}
+# Anything repair() might change: an odd character, a stray "d" for δ, or "J )" for "J =".  Written
+# as one character class first, then what must follow a "d" or a "J", so the search skips along
+# the text by the class alone (several times faster than the plain alternation on clean blocks).
 _NEEDS_WORK = re.compile(
-    "[" + _SPACES + _DELETED + "".join(_LIGATURES) + "\u2010\u2011\t\n\r¼]|(?<![A-Za-z])d(?=[ HC]?\\s?[=(]|\\s+[-−]?\\d)|J\\s?\\)\\s?\\d"
+    "[" + _SPACES + _DELETED + "".join(_LIGATURES) + "\u2010\u2011\t\n\r¼dJ]"
+    "(?:(?<=d)(?<![A-Za-z]d)(?=[ HC]?\\s?[=(]|\\s+[-−]?\\d)|(?<=J)\\s?\\)\\s?\\d|(?<![dJ]))"
 )
 
 # "J ¼ 7.1" — the equals sign came out as the ¼ glyph.

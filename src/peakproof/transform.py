@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import re
 from functools import lru_cache
-from typing import NamedTuple
 
 from lark import Token, Transformer
 
@@ -103,15 +102,6 @@ _SIGNAL_TAIL = r"(?!\s*ppm)(?:\s*[,;]\s*(?=[\-" "\u2212" r"]?\d))?\s*"
 
 
 _new = tuple.__new__  # a record straight from its fields, in order (the hot paths' constructor)
-
-
-class _Piece(NamedTuple):
-    """A token of a fast-path token, with the attributes the callbacks read from lark Tokens."""
-
-    type: str
-    value: str
-    start_pos: int
-    end_pos: int
 
 
 def _j_text(value: str) -> str:
@@ -754,79 +744,69 @@ class BlockBuilder(Transformer):
         return bisect_left(offsets, target)
 
     # ---- mass spectra ---------------------------------------------------------------------
-    def _split_ms(self, tok: Token) -> list:
-        """An MS_FAST token as the MS_START and part tokens the lexer would have given."""
+    def _ms_parts(self, c) -> tuple[tuple[str, str, int], list]:
+        """A mass-spec item's start and parts as ``(kind, text, start)``; an MS_FAST token is split
+        into the MS_START and part tokens the lexer would have given (one match per part)."""
+        first = c[0]
+        if first.type != "MS_FAST":
+            return (first.type, first.value, first.start_pos), [(t.type, t.value, t.start_pos) for t in c[1:]]
         text = self.ctx.parsed
-        m = self.fast.ms_start.match(text, tok.start_pos)
-        tokens = [_Piece("MS_START", m.group(0), m.start(), m.end())]
-        pos, end = m.end(), tok.end_pos
+        m = self.fast.ms_start.match(text, first.start_pos)
+        pos, end = m.end(), first.end_pos
         gap_part = self.fast.ms_gap_part
-        append = tokens.append
+        parts = []
+        append = parts.append
         while pos < end:
             p = gap_part.match(text, pos, end)
             if p is None:  # only white space is left
                 break
             kind = p.lastgroup
-            append(_Piece(kind, p.group(kind), p.start(kind), p.end()))
+            append((kind, p.group(kind), p.start(kind)))
             pos = p.end()
-        return tokens
+        parts.extend((t.type, t.value, t.start_pos) for t in c[1:])
+        return ("MS_START", m.group(0), m.start()), parts
 
     def mass_spec(self, c):
-        ctx = self.ctx
-        if c[0].type == "MS_FAST":
-            c = [*self._split_ms(c[0]), *c[1:]]
-        head = c[0]
-        method = _method_in_head(head.value)
+        span = self.ctx.span
+        (_, head, head_start), parts = self._ms_parts(c)
+        method = _method_in_head(head)
         ion = ion_written = ion_span = None
         formula = formula_span = None
         calcd = found = None
         calcd_text = found_text = ""
         calcd_span = found_span = None
         mode = None
-        for tok in c[1:]:
-            kind = tok.type
-            if kind == "METHOD_PAREN":
-                if method is None:
-                    inner = tok.value.strip()[1:-1].strip()
-                    if not inner.lower().startswith("m/z"):
-                        method = inner
-            elif kind == "ION":
-                if ion is None:
-                    ion_written = tok.value.strip()
-                    ion = _ion_text(ion_written)
-                    ion_span = ctx.span(tok.start_pos, _stripped_end(tok))
+        for kind, value, start in parts:
+            if kind == "NUMBER":
+                if mode == "found" and found is None:
+                    found, found_text, found_span = number(value), value, span(start, start + len(value))
+                elif mode == "calcd" and calcd is None:
+                    calcd, calcd_text, calcd_span = number(value), value, span(start, start + len(value))
+                elif mode is None and found is None:
+                    found, found_text, found_span = number(value), value, span(start, start + len(value))
             elif kind == "CALCD":
                 mode = "calcd"
             elif kind == "FOUND":
                 mode = "found"
+            elif kind == "ION":
+                if ion is None:
+                    ion_written = value.strip()
+                    ion = _ion_text(ion_written)
+                    ion_span = span(start, start + len(value.rstrip()))
             elif kind == "ION_FORMULA":
                 if formula is None:
-                    formula, f_start, f_end = _bare_formula(tok)
-                    formula_span = ctx.span(f_start, f_end)
-            elif kind == "NUMBER":
-                value = number(tok.value)
-                if mode == "found" and found is None:
-                    found, found_text, found_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
-                elif mode == "calcd" and calcd is None:
-                    calcd, calcd_text, calcd_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
-                elif mode is None and found is None:
-                    found, found_text, found_span = value, tok.value, ctx.span(tok.start_pos, tok.end_pos)
-        last = c[-1]
-        return MassSpec(
-            span=ctx.span(_lead(head), last.start_pos + len(last.value.rstrip())),
-            method=method,
-            ion=ion,
-            ion_written=ion_written,
-            formula=formula,
-            formula_span=formula_span,
-            calcd=calcd,
-            calcd_text=calcd_text,
-            calcd_span=calcd_span,
-            found=found,
-            found_text=found_text,
-            found_span=found_span,
-            ion_span=ion_span,
-        )
+                    formula, lead = _formula_cut(value, False)
+                    formula_span = span(start + lead, start + lead + len(formula))
+            elif kind == "METHOD_PAREN":
+                if method is None:
+                    inner = value.strip()[1:-1].strip()
+                    if not inner.lower().startswith("m/z"):
+                        method = inner
+        last_kind, last, last_start = parts[-1] if parts else ("MS_START", head, head_start)
+        lead = _LEAD.match(head).end()
+        return _new(MassSpec, (span(head_start + lead, last_start + len(last.rstrip())), method, ion,
+                               ion_written, formula, formula_span, calcd, calcd_text, calcd_span,
+                               found, found_text, found_span, ion_span))
 
     # ---- elemental analysis ---------------------------------------------------------------
     def element_value(self, c):
