@@ -1,4 +1,6 @@
-"""A lexer scanner that compiles each terminal once per process, for short texts.
+"""Two stand-ins for lark's lexer scanner.
+
+``install``: a scanner that compiles each terminal once per process, for short texts.
 
 Lark's contextual lexer compiles, for every parser state it meets, one alternation of the
 terminals that state accepts; on a one-paragraph file that is most of the start-up time. This
@@ -6,6 +8,11 @@ scanner tries the same terminals in the same order, one compiled pattern each (s
 state), which is exactly what the alternation does ("the first alternative that matches wins").
 It is used for the grammar without fast-path tokens, which reads short texts; tests compare its
 readings with lark's own scanner.
+
+``install_reader``: for the fast grammar, the SIGNALS token (a whole list of signals, the
+highest-priority terminal wherever it is allowed) is read by the transformer's own loop, one
+signal at a time, instead of by its long pattern and then again by the transformer.  The loop
+matches the pattern's own repeated group, so it ends where the pattern would.
 """
 
 from __future__ import annotations
@@ -68,6 +75,69 @@ def install(lark_parser) -> bool:
     for lexer in lexers:
         if not isinstance(lexer, BasicLexer) or getattr(lexer, "_scanner", None) is not None:
             return False
+    for lexer in lexers:
+        lexer._build_scanner = build.__get__(lexer)
+    return True
+
+
+class ReaderFirstScanner:
+    """Stands in for ``lark.lexer.Scanner`` when its first terminal is read by a function.
+
+    ``read(string, pos, end)`` returns where that terminal's match at ``pos`` would end (``pos``
+    when it does not match); the other terminals are tried as lark would, in the same order."""
+
+    def __init__(self, name, read, terminals, g_regex_flags, re_, use_bytes):
+        from lark.lexer import Scanner
+
+        self.terminals = terminals
+        self.allowed_types = {t.name for t in terminals}
+        self._name = name
+        self._read = read
+        rest = [t for t in terminals if t.name != name]
+        self._rest = Scanner(rest, g_regex_flags, re_, use_bytes) if rest else None
+        self._whole = (terminals, g_regex_flags, re_, use_bytes)
+
+    def match(self, text, pos):
+        string = text.text
+        stop = self._read(string, pos, text.end)
+        if stop > pos:
+            return string[pos:stop], self._name
+        return self._rest.match(text, pos) if self._rest is not None else None
+
+    def fullmatch(self, text: str):
+        from lark.lexer import Scanner
+
+        return Scanner(*self._whole).fullmatch(text)
+
+
+def install_reader(lark_parser, name: str, read) -> bool:
+    """Read terminal ``name`` with ``read`` in every per-state lexer of ``lark_parser`` where it
+    is the first terminal tried (it always is for SIGNALS, the highest priority).
+
+    Returns False (and changes nothing) when this lark version is laid out differently."""
+    try:
+        from lark.lexer import BasicLexer, _create_unless
+
+        contextual = lark_parser.parser.lexer
+        lexers = list(contextual.lexers.values()) + [contextual.root_lexer]
+    except (AttributeError, ImportError):
+        return False
+    for lexer in lexers:
+        if not isinstance(lexer, BasicLexer) or getattr(lexer, "_scanner", None) is not None:
+            return False
+        if lexer.user_callbacks:  # not used by peakproof's grammars
+            return False
+    original = BasicLexer._build_scanner
+
+    def build(self):
+        if not self.terminals or self.terminals[0].name != name:
+            return original(self)  # not allowed here (or not first): lark's own scanner
+        terminals, self.callback = _create_unless(self.terminals, self.g_regex_flags, self.re,
+                                                  self.use_bytes)
+        if name in self.callback or terminals[0].name != name:
+            return original(self)
+        return ReaderFirstScanner(name, read, terminals, self.g_regex_flags, self.re, self.use_bytes)
+
     for lexer in lexers:
         lexer._build_scanner = build.__get__(lexer)
     return True

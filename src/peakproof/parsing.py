@@ -128,6 +128,10 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
         install(parser)
     # The fast tokens' own patterns are compiled only for the grammar that has them.
     builder.fast = FastPatterns(lambda name: parser.get_terminal(name).pattern.to_regexp()) if fast else None
+    if fast:  # the lexer's SIGNALS tokens are read by the builder's own loop, once
+        from .lean_lexer import install_reader
+
+        install_reader(parser, "SIGNALS", builder.read_signals)
     return builder, parser
 
 
@@ -188,6 +192,7 @@ def parse_block(text: str, start: int, end: int, index: LineIndex, *, fast: bool
             Diagnostic(f"repair-{r.kind}", "note", r.message, index.span(start + r.start, start + r.end))
         )
     builder.ctx = ctx
+    builder.read_ahead.clear()
     try:
         items = parser.parse(repaired.text, start="block")
     except UnexpectedInput:

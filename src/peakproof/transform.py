@@ -99,6 +99,8 @@ def _stripped_end(token: Token) -> int:
 _BARE_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)\s*[,;]\s*(?=[\-" "\u2212" r"]?\d)"
 _LAST_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)(?=\s*(?:[;.,]|$))"
 _SIGNAL_TAIL = r"(?!\s*ppm)(?:\s*[,;]\s*(?=[\-" "\u2212" r"]?\d))?\s*"
+# What _SIGNAL asks of its parentheses: closed, nothing nested, no "8,4"-style decimal comma.
+_SIGNAL_OPEN_GUARDS = r"(?=[^()]*\))(?![^)]*\d,\d)(?![^)]*J\d{1,2},\d)"
 
 
 _new = tuple.__new__  # a record straight from its fields, in order (the hot paths' constructor)
@@ -143,7 +145,7 @@ class FastPatterns:
         except KeyError:
             pass
         details = (
-            f"\\s?(?P<open>\\()(?P<m>{pattern_of('MULT')})"
+            f"\\s?(?P<open>\\(){_SIGNAL_OPEN_GUARDS}(?P<m>{pattern_of('MULT')})"
             f"(?:,\\s?(?P<jl>{pattern_of('JLABEL')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{num})"
             f"(?:,\\s?(?P<j2>{num}))?(?:,\\s?(?P<j3>{num}))?(?:\\s?{hz})?)?"
             f",\\s?(?P<c>{pattern_of('COUNT')})(?P<close>\\))"
@@ -162,7 +164,7 @@ class FastPatterns:
             # Pieces of the SIGNALS terminal, written out here for speed; the assertion keeps
             # them equal to the grammar's (tests build this class).
             whole = pattern_of("SIGNALS")
-            for piece in (_BARE_REST, _LAST_REST, _SIGNAL_TAIL):
+            for piece in (_BARE_REST, _LAST_REST, _SIGNAL_TAIL, "\\(" + _SIGNAL_OPEN_GUARDS):
                 assert piece in whole, f"grammar/peaks.lark changed: update {piece!r} in transform.py"
             # One step of a SIGNALS token: a shift of a plain list (group "b"), tried first as the
             # lexer's alternation does, or the commonest detailed signal with its separator.
@@ -183,6 +185,8 @@ class BlockBuilder(Transformer):
         super().__init__(visit_tokens=False)
         self.ctx: Context | None = None
         self.fast: FastPatterns | None = None
+        # SIGNALS tokens read while lexing: (start, end) -> (text, entries); see read_signals
+        self.read_ahead: dict[tuple[int, int], tuple[str, list]] = {}
 
     # ---- signals -------------------------------------------------------------------------
     def shift(self, c):
@@ -281,16 +285,40 @@ class BlockBuilder(Transformer):
         return (c[0], details)
 
     def _fast_entries(self, tok: Token) -> list:
-        """A SIGNALS token: consecutive fast-path signals, split with their own pattern."""
+        """A SIGNALS token's entries: read while the lexer matched it (see ``read_signals``), or
+        split now with the token's own pattern."""
+        parsed = self.ctx.parsed  # match in context: the token's own lookaheads saw past its end
+        read = self.read_ahead.pop((tok.start_pos, tok.end_pos), None)
+        if read is not None and read[0] is parsed:
+            return read[1]
+        return self._signal_run(parsed, tok.start_pos, tok.end_pos, len(parsed))[0]
+
+    def read_signals(self, string: str, pos: int, end: int) -> int:
+        """Read a SIGNALS token at ``pos`` for the lexer (see ``lean_lexer.install_reader``): the
+        end of what the token's pattern would match, or ``pos`` when it matches nothing.  The
+        entries are kept for the parser's callback, so each signal is matched once."""
+        if self.ctx is None:  # not reading a block: find the end only
+            one = self.fast.one_signal
+            for _ in range(9999):
+                m = one.match(string, pos, end) if pos < end else None
+                if m is None:
+                    break
+                pos = m.end()
+            return pos
+        entries, stop = self._signal_run(string, pos, end, end)
+        if stop > pos:
+            self.read_ahead[(pos, stop)] = (string, entries)
+        return stop
+
+    def _signal_run(self, string: str, pos: int, limit: int, end: int) -> tuple[list, int]:
+        """Consecutive fast-path signals from ``pos`` up to ``limit`` (matching within ``end``),
+        one repetition of SIGNALS at a time, and where they stop."""
         fast = self.fast
         one, step = fast.one_signal, fast.step
-        parsed = self.ctx.parsed  # match in context: the token's own lookaheads saw past its end
-        pos = tok.start_pos
-        end = tok.end_pos
         out = []
         append = out.append
-        while pos < end:
-            d = step.match(parsed, pos)
+        while pos < limit and len(out) < 9999:  # SIGNALS repeats its group at most 9999 times
+            d = step.match(string, pos, end)
             if d is not None:
                 value = d.group("b")
                 if value is not None:  # a shift of a plain list: the alternatives are disjoint
@@ -303,10 +331,12 @@ class BlockBuilder(Transformer):
                     append(signal)
                     pos = d.end()
                     continue
-            m = one.match(parsed, pos)
+            m = one.match(string, pos, end)
+            if m is None:
+                break
             append(self._fast_entry(Token("SIGNAL", m.group(0), start_pos=pos)))
             pos = m.end()
-        return out
+        return out, pos
 
     def _direct_signal(self, d):
         """The commonest signal, ``7.26 (d, J = 8.4 Hz, 2H)``, straight from one match; None when

@@ -1,0 +1,73 @@
+"""The SIGNALS token is read by the builder's loop; it must end exactly where its pattern ends."""
+
+import re
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+
+from peakproof.lean_lexer import ReaderFirstScanner
+from peakproof.parsing import _builder_and_parser, parse
+from peakproof.repair import repair
+from peakproof.span import LineIndex
+from peakproof.transform import Context
+from tests.corpus import load_corpus
+from tests.corpus.damage import damage
+from tests.strategies import blocks
+
+ENTRIES = load_corpus()
+
+
+def _signals_pattern():
+    _, parser = _builder_and_parser(True)
+    return re.compile(parser.get_terminal("SIGNALS").pattern.to_regexp())
+
+
+def _check_every_start(text: str) -> int:
+    """Compare the reader with the pattern at every place a shift could start; return how many
+    places the pattern matched."""
+    builder, _ = _builder_and_parser(True)
+    pattern = _signals_pattern()
+    repaired = repair(text)
+    string = repaired.text
+    matched = 0
+    for m in re.finditer(r"[-+\u2212]?\d", string):
+        pos = m.start()
+        want = pattern.match(string, pos)
+        want_end = want.end() if want else pos
+        builder.ctx = None
+        assert builder.read_signals(string, pos, len(string)) == want_end
+        builder.ctx = Context(0, repaired, LineIndex(text))
+        builder.ctx.parsed = string
+        try:
+            assert builder.read_signals(string, pos, len(string)) == want_end, string[pos:pos + 80]
+        finally:
+            builder.ctx = None
+            builder.read_ahead.clear()
+        matched += want is not None
+    return matched
+
+
+def test_reader_is_installed_where_signals_come_first():
+    parse("1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), 3.80 (s, 3H).", fast=True)
+    _, parser = _builder_and_parser(True)
+    lexers = list(parser.parser.lexer.lexers.values())
+    built = [lx for lx in lexers if lx._scanner is not None]
+    readers = [lx for lx in built if isinstance(lx._scanner, ReaderFirstScanner)]
+    assert readers  # the signal list was read by the builder's loop
+    for lx in built:
+        if lx.terminals and lx.terminals[0].name == "SIGNALS":
+            assert isinstance(lx._scanner, ReaderFirstScanner)
+
+
+@pytest.mark.parametrize("damaged", [False, True], ids=["clean", "damaged"])
+def test_reader_ends_where_the_pattern_ends_on_the_corpus(damaged):
+    matched = 0
+    for entry in ENTRIES:
+        matched += _check_every_start(damage(entry.text, entry.id).text if damaged else entry.text)
+    assert matched > 300  # the comparison really met signal lists
+
+
+@settings(max_examples=100, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(blocks())
+def test_reader_ends_where_the_pattern_ends_on_generated_blocks(case):
+    _check_every_start(case[0])
