@@ -13,12 +13,17 @@ from typing import NamedTuple
 from .records import compared_by_class
 
 _SUP = "\u00b9\u00b2\u00b3\u2070\u2074-\u2079"
+# Each alternative's first character is consumed by one leading class (so a search skips along
+# the text by that class alone), and what must come before it is checked behind it:
+# "(?<![\w.].)" after one character says what "(?<![\w.])" said before it.
 CORE_START = re.compile(
-    rf"(?<![\w.])(?:\d{{1,3}}|[{_SUP}]{{1,3}})\s?[A-Z][a-z]?\s?(?:\{{[^{{}}()]{{1,30}}\}}|\[[^\[\]]{{1,30}}\])?\s?(?:-\s?)?NMR(?![A-Za-z])"
-    r"|(?<![\w])[δd]\s?_?\{?[HCF]\}?\s?\((?=[^()]{0,60}MHz)"
-    r"|(?<![\w])(?:HR|High[\s\-]resolution\s)\s?-?\s?(?:(?:ESI|EI|CI|APCI|APPI|FAB|MALDI|DART|FD)\s?-?\s?)?(?:Q-?TOF\s?-?\s?|TOF\s?-?\s?)?MS(?![A-Za-z])"
-    r"|(?<![\w])Anal(?:ysis)?\.\s*(?:[Cc]alc|[Ff]ound)"
-    r"|(?<![\w])(?:Elemental\s+[Aa]nalysis|Microanalysis)\b"
+    rf"[\d{_SUP}δdHAEM](?:"
+    rf"(?<![\w.].)(?:(?<=\d)\d{{0,2}}|(?<=[{_SUP}])[{_SUP}]{{0,2}})\s?[A-Z][a-z]?\s?(?:\{{[^{{}}()]{{1,30}}\}}|\[[^\[\]]{{1,30}}\])?\s?(?:-\s?)?NMR(?![A-Za-z])"
+    r"|(?<!\w.)(?<=[δd])\s?_?\{?[HCF]\}?\s?\((?=[^()]{0,60}MHz)"
+    r"|(?<!\w.)(?<=H)(?:R|igh[\s\-]resolution\s)\s?-?\s?(?:(?:ESI|EI|CI|APCI|APPI|FAB|MALDI|DART|FD)\s?-?\s?)?(?:Q-?TOF\s?-?\s?|TOF\s?-?\s?)?MS(?![A-Za-z])"
+    r"|(?<!\w.)(?<=A)nal(?:ysis)?\.\s*(?:[Cc]alc|[Ff]ound)"
+    r"|(?<!\w.)(?:(?<=E)lemental\s+[Aa]nalysis|(?<=M)icroanalysis)\b"
+    r")"
 )
 OTHER_START = re.compile(
     r"(?:^|(?<=\n)|(?<=[;,.]\s)|(?<=[;,]))[ \t]*"
