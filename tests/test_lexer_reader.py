@@ -17,29 +17,31 @@ from tests.strategies import blocks
 ENTRIES = load_corpus()
 
 
-def _signals_pattern():
+def _pattern(name):
     _, parser = _builder_and_parser(True)
-    return re.compile(parser.get_terminal("SIGNALS").pattern.to_regexp())
+    return re.compile(parser.get_terminal(name).pattern.to_regexp())
 
 
-def _check_every_start(text: str) -> int:
-    """Compare the reader with the pattern at every place a shift could start; return how many
-    places the pattern matched."""
+def _check_every_start(text: str, name: str = "SIGNALS") -> int:
+    """Compare the reader of terminal ``name`` with its pattern at every place it could start (a
+    shift for SIGNALS, any character for SPECTRUM_FAST); return how many places matched."""
     builder, _ = _builder_and_parser(True)
-    pattern = _signals_pattern()
+    pattern = _pattern(name)
+    read = builder.read_signals if name == "SIGNALS" else builder.read_spectrum
     repaired = repair(text)
     string = repaired.text
+    starts = re.finditer(r"[-+\u2212]?\d" if name == "SIGNALS" else r"(?s).", string)
     matched = 0
-    for m in re.finditer(r"[-+\u2212]?\d", string):
+    for m in starts:
         pos = m.start()
         want = pattern.match(string, pos)
         want_end = want.end() if want else pos
         builder.ctx = None
-        assert builder.read_signals(string, pos, len(string)) == want_end
+        assert read(string, pos, len(string)) == want_end
         builder.ctx = Context(0, repaired, LineIndex(text))
         builder.ctx.parsed = string
         try:
-            assert builder.read_signals(string, pos, len(string)) == want_end, string[pos:pos + 80]
+            assert read(string, pos, len(string)) == want_end, string[pos:pos + 80]
         finally:
             builder.ctx = None
             builder.read_ahead.clear()
@@ -55,19 +57,21 @@ def test_reader_is_installed_where_signals_come_first():
     readers = [lx for lx in built if isinstance(lx._scanner, ReaderFirstScanner)]
     assert readers  # the signal list was read by the builder's loop
     for lx in built:
-        if lx.terminals and lx.terminals[0].name == "SIGNALS":
+        if lx.terminals and lx.terminals[0].name in ("SIGNALS", "SPECTRUM_FAST"):
             assert isinstance(lx._scanner, ReaderFirstScanner)
 
 
+@pytest.mark.parametrize("name", ["SIGNALS", "SPECTRUM_FAST"])
 @pytest.mark.parametrize("damaged", [False, True], ids=["clean", "damaged"])
-def test_reader_ends_where_the_pattern_ends_on_the_corpus(damaged):
+def test_reader_ends_where_the_pattern_ends_on_the_corpus(damaged, name):
     matched = 0
     for entry in ENTRIES:
-        matched += _check_every_start(damage(entry.text, entry.id).text if damaged else entry.text)
-    assert matched > 300  # the comparison really met signal lists
+        matched += _check_every_start(damage(entry.text, entry.id).text if damaged else entry.text, name)
+    assert matched > (1500 if name == "SIGNALS" else 150)  # the comparison really met such tokens
 
 
 @settings(max_examples=100, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(blocks())
 def test_reader_ends_where_the_pattern_ends_on_generated_blocks(case):
-    _check_every_start(case[0])
+    _check_every_start(case[0], "SIGNALS")
+    _check_every_start(case[0], "SPECTRUM_FAST")

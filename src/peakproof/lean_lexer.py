@@ -81,27 +81,29 @@ def install(lark_parser) -> bool:
 
 
 class ReaderFirstScanner:
-    """Stands in for ``lark.lexer.Scanner`` when its first terminal is read by a function.
+    """Stands in for ``lark.lexer.Scanner`` when its first terminals are read by functions.
 
+    ``readers`` lists ``(name, read)`` for the leading terminals, in the scanner's order;
     ``read(string, pos, end)`` returns where that terminal's match at ``pos`` would end (``pos``
-    when it does not match); the other terminals are tried as lark would, in the same order."""
+    when it does not match).  The first that matches wins, as in lark's alternation; the other
+    terminals are tried as lark would, in the same order."""
 
-    def __init__(self, name, read, terminals, g_regex_flags, re_, use_bytes):
+    def __init__(self, readers, terminals, g_regex_flags, re_, use_bytes):
         from lark.lexer import Scanner
 
         self.terminals = terminals
         self.allowed_types = {t.name for t in terminals}
-        self._name = name
-        self._read = read
-        rest = [t for t in terminals if t.name != name]
+        self._readers = readers
+        rest = terminals[len(readers):]
         self._rest = Scanner(rest, g_regex_flags, re_, use_bytes) if rest else None
         self._whole = (terminals, g_regex_flags, re_, use_bytes)
 
     def match(self, text, pos):
-        string = text.text
-        stop = self._read(string, pos, text.end)
-        if stop > pos:
-            return string[pos:stop], self._name
+        string, end = text.text, text.end
+        for name, read in self._readers:
+            stop = read(string, pos, end)
+            if stop > pos:
+                return string[pos:stop], name
         return self._rest.match(text, pos) if self._rest is not None else None
 
     def fullmatch(self, text: str):
@@ -110,9 +112,10 @@ class ReaderFirstScanner:
         return Scanner(*self._whole).fullmatch(text)
 
 
-def install_reader(lark_parser, name: str, read) -> bool:
-    """Read terminal ``name`` with ``read`` in every per-state lexer of ``lark_parser`` where it
-    is the first terminal tried (it always is for SIGNALS, the highest priority).
+def install_reader(lark_parser, readers: dict) -> bool:
+    """Read the terminals named in ``readers`` (name -> read function) with their functions in
+    every per-state lexer of ``lark_parser`` where they come first in the lexer's order (they are
+    the highest-priority terminals).
 
     Returns False (and changes nothing) when this lark version is laid out differently."""
     try:
@@ -130,13 +133,16 @@ def install_reader(lark_parser, name: str, read) -> bool:
     original = BasicLexer._build_scanner
 
     def build(self):
-        if not self.terminals or self.terminals[0].name != name:
-            return original(self)  # not allowed here (or not first): lark's own scanner
         terminals, self.callback = _create_unless(self.terminals, self.g_regex_flags, self.re,
                                                   self.use_bytes)
-        if name in self.callback or terminals[0].name != name:
+        leading = []
+        for t in terminals:
+            if t.name not in readers or t.name in self.callback:
+                break
+            leading.append((t.name, readers[t.name]))
+        if not leading:
             return original(self)
-        return ReaderFirstScanner(name, read, terminals, self.g_regex_flags, self.re, self.use_bytes)
+        return ReaderFirstScanner(leading, terminals, self.g_regex_flags, self.re, self.use_bytes)
 
     for lexer in lexers:
         lexer._build_scanner = build.__get__(lexer)

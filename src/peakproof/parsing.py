@@ -116,7 +116,7 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
     grammar_path = GRAMMAR_DIR / "peaks.lark"
     grammar = grammar_path.read_text(encoding="utf-8")
     if not fast:
-        grammar = re.sub(r"\n\s*\| (?:SIGNALS|HEADER|MS_FAST)\b[^\n]*", "", grammar)
+        grammar = re.sub(r"\n\s*\| (?:SIGNALS|HEADER|MS_FAST|SPECTRUM_FAST)\b[^\n]*", "", grammar)
     options.update(import_paths=[str(GRAMMAR_DIR)], source_path=str(grammar_path))
     try:
         parser = Lark(grammar, cache=str(cache), **options)
@@ -131,7 +131,7 @@ def _build(fast: bool) -> tuple[BlockBuilder, Lark]:
     if fast:  # the lexer's SIGNALS tokens are read by the builder's own loop, once
         from .lean_lexer import install_reader
 
-        install_reader(parser, "SIGNALS", builder.read_signals)
+        install_reader(parser, {"SPECTRUM_FAST": builder.read_spectrum, "SIGNALS": builder.read_signals})
     return builder, parser
 
 

@@ -173,6 +173,7 @@ class FastPatterns:
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
         )
+        self.header = re.compile(pattern_of("HEADER")) if self.one_signal is not None else None
         self.freq = re.compile(pattern_of("FREQ"))
         self.temp = re.compile(pattern_of("TEMP"))
         self.headers: dict[str, tuple] = {}  # HEADER token text -> what it says (see _header_reading)
@@ -292,6 +293,42 @@ class BlockBuilder(Transformer):
         if read is not None and read[0] is parsed:
             return read[1]
         return self._signal_run(parsed, tok.start_pos, tok.end_pos, len(parsed))[0]
+
+    def read_spectrum(self, string: str, pos: int, end: int) -> int:
+        """Read a SPECTRUM_FAST token (HEADER SIGNALS) at ``pos`` for the lexer, as ``read_signals``
+        does.  The header's pattern ends in a DELTA and white space, and a signal list starts with
+        a number, so the two split where the header's own match ends."""
+        header = self.fast.header.match(string, pos, end)
+        if header is None:
+            return pos
+        at = header.end()
+        if self.ctx is None:
+            stop = self.read_signals(string, at, end)
+            return stop if stop > at else pos
+        entries, stop = self._signal_run(string, at, end, end)
+        if stop == at:
+            return pos
+        self.read_ahead[(pos, stop)] = (string, (at, entries))
+        return stop
+
+    def _fast_spectrum(self, c) -> Spectrum:
+        """A SPECTRUM_FAST token (with any signals after it): header and signals as read."""
+        tok = c[0]
+        parsed = self.ctx.parsed
+        read = self.read_ahead.pop((tok.start_pos, tok.end_pos), None)
+        if read is not None and read[0] is parsed:
+            at, entries = read[1]
+        else:
+            at = self.fast.header.match(parsed, tok.start_pos).end()
+            entries = self._signal_run(parsed, at, tok.end_pos, len(parsed))[0]
+        if len(c) > 1:
+            entries = list(entries)
+            for item in c[1:]:
+                if isinstance(item, list):  # a SIGNALS token's entries
+                    entries.extend(item)
+                elif not isinstance(item, Token):
+                    entries.append(item)
+        return self._header_spectrum(parsed[tok.start_pos : at], tok.start_pos, self._signals(entries))
 
     def read_signals(self, string: str, pos: int, end: int) -> int:
         """Read a SIGNALS token at ``pos`` for the lexer (see ``lean_lexer.install_reader``): the
@@ -581,6 +618,8 @@ class BlockBuilder(Transformer):
         return self._spectrum(c, signals=[])
 
     def spectrum(self, c):
+        if c[0].type == "SPECTRUM_FAST":
+            return self._fast_spectrum(c)
         return self._spectrum(c, signals=None)
 
     def _header_reading(self, text: str) -> tuple:
@@ -634,13 +673,12 @@ class BlockBuilder(Transformer):
             fast.headers[text] = hit
         return hit
 
-    def _header_spectrum(self, tok: Token, signals: list) -> Spectrum:
-        """A spectrum whose header came as one HEADER token (the fast path)."""
+    def _header_spectrum(self, header: str, base: int, signals: list) -> Spectrum:
+        """A spectrum whose header (at ``base``) was read as one HEADER match (the fast path)."""
         (lead, nucleus, decoupled, note, freq, freq_at, solvent, solvent_norm, solvent_at,
-         temperature, nucleus_end, header_end) = self._header_reading(tok.value)
+         temperature, nucleus_end, header_end) = self._header_reading(header)
         ctx = self.ctx
         span = ctx.span
-        base = tok.start_pos
         if note is not None:
             ctx.note("repair-superscript", note[0], base + note[1], base + note[2])
         start = base + lead
@@ -667,7 +705,7 @@ class BlockBuilder(Transformer):
     def _spectrum(self, c, signals):
         head = c[0]
         if head.type == "HEADER":
-            return self._header_spectrum(head, c[1] if len(c) > 1 else [])
+            return self._header_spectrum(head.value, head.start_pos, c[1] if len(c) > 1 else [])
         conditions: list = []
         delta = None
         for item in c[1:]:
