@@ -100,7 +100,7 @@ _BARE_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)\s*
 _LAST_REST = r"(?!\s*[(\-" "\u2013\u2014\u2212" r"]|\s*to(?![A-Za-z])|\s*ppm)(?=\s*(?:[;.,]|$))"
 _SIGNAL_TAIL = r"(?!\s*ppm)(?:\s*[,;]\s*(?=[\-" "\u2212" r"]?\d))?\s*"
 # What _SIGNAL asks of its parentheses: closed, nothing nested, no "8,4"-style decimal comma.
-_SIGNAL_OPEN_GUARDS = r"(?=[^()]*\))(?![^)]*\d,\d)(?![^)]*J\d{1,2},\d)"
+_SIGNAL_OPEN_GUARDS = r"(?=[^()]*\))(?![^)]*\d,\d)"
 
 
 _new = tuple.__new__  # a record straight from its fields, in order (the hot paths' constructor)
@@ -168,8 +168,9 @@ class FastPatterns:
                 assert piece in whole, f"grammar/peaks.lark changed: update {piece!r} in transform.py"
             # One step of a SIGNALS token: a shift of a plain list (group "b"), tried first as the
             # lexer's alternation does, or the commonest detailed signal with its separator.
-            self.step = re.compile(f"(?P<b>{num})(?:{_BARE_REST}|{_LAST_REST})"
-                                   f"|{self.direct.pattern}{_SIGNAL_TAIL}")
+            # (NUMBER is atomic, so its match is the same in either branch: read it once.)
+            self.step = re.compile(f"(?P<s>{num})(?:(?P<b>{_BARE_REST}|{_LAST_REST})"
+                                   f"|{self.direct.pattern[len(f'(?P<s>{num})'):]}{_SIGNAL_TAIL})")
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
         )
@@ -357,10 +358,10 @@ class BlockBuilder(Transformer):
         while pos < limit and len(out) < 9999:  # SIGNALS repeats its group at most 9999 times
             d = step.match(string, pos, end)
             if d is not None:
-                value = d.group("b")
-                if value is not None:  # a shift of a plain list: the alternatives are disjoint
+                if d.start("b") >= 0:  # a shift of a plain list: the alternatives are disjoint
                     # left as an entry: a following "(2 × d, 1H each)" may claim it
-                    append(((number(value), None, value, pos, d.end("b")), None))
+                    value = d.group("s")
+                    append(((number(value), None, value, pos, d.end("s")), None))
                     pos = d.end()
                     continue
                 signal = self._direct_signal(d)
