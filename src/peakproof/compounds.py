@@ -30,7 +30,8 @@ _LABEL_AT_END = re.compile(
     rf"(?:\s*[,:;]?\s*\(?(?P<after>{_FORMULA_TEXT})\)?)?\s*[.:]?\s*$"
 )
 _FORMULA_AT_END = lazy(rf"[\s,:;(]+(?P<formula>{_FORMULA_TEXT})\)?\s*[.:]?\s*$")
-_COMPOUND_WORD = lazy(r"\b(?:[Cc]ompound|[Pp]roduct)\s+(?P<label>\d{1,3}[a-z]?)\b")
+# "\b" before the word, checked behind its first letter so a search skips along by that letter.
+_COMPOUND_WORD = lazy(r"[CcPp](?<!\w.)(?:(?<=[Cc])ompound|(?<=[Pp])roduct)\s+(?P<label>\d{1,3}[a-z]?)\b")
 _LABEL_IN_SENTENCE = lazy(
     rf"\((?P<label>\d{{1,3}}[a-z]?)(?:\s*[;,]\s*(?P<inner>{_FORMULA_TEXT}))?\)"
     rf"(?:\s*[,:;]?\s*\(?(?P<after>{_FORMULA_TEXT})\)?(?![\w(]))?"

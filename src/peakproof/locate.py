@@ -93,10 +93,14 @@ def _reach_back(text: str, core: int, floor: int) -> int:
             return start
 
 
-# The characters that matter for a block's end; a bracketed group without brackets or line
-# breaks inside leaves the depth as it was, so it is passed in one step, and so is a full stop
-# followed by anything but white space (a decimal point, "m.p."), which never ends a block.
-_SIGNIFICANT = re.compile(r"\([^()\[\]{}\n]*\)|\[[^()\[\]{}\n]*\]|\{[^()\[\]{}\n]*\}|[()\[\]{}\n]|\.(?!\S)")
+# From a position to the next character that matters for a block's end: everything else is
+# passed in one possessive step, including a bracketed group without brackets or line breaks
+# inside (it leaves the depth as it was) and a full stop followed by anything but white space
+# (a decimal point, "m.p."), which never ends a block.
+_NEXT_SIGNIFICANT = re.compile(
+    r"(?:[^()\[\]{}\n.]+|\.(?=\S)|\([^()\[\]{}\n]*\)|\[[^()\[\]{}\n]*\]|\{[^()\[\]{}\n]*\})*+"
+    r"([()\[\]{}\n.])"
+)
 
 
 def _block_end(text: str, start: int) -> int:
@@ -104,10 +108,11 @@ def _block_end(text: str, start: int) -> int:
     depth = 0
     n = len(text)
     stop = n
-    for m in _SIGNIFICANT.finditer(text, start):
-        i = m.start()
-        if m.end() - i > 1:
-            continue  # a closed group
+    pos = start
+    next_significant = _NEXT_SIGNIFICANT.match
+    while (m := next_significant(text, pos)) is not None:
+        i = m.start(1)
+        pos = i + 1
         ch = text[i]
         if ch in "([{":
             depth += 1
