@@ -105,6 +105,19 @@ _SIGNAL_OPEN_GUARDS = r"(?=[^()]*\))(?![^)]*\d,\d)"
 
 _new = tuple.__new__  # a record straight from its fields, in order (the hot paths' constructor)
 
+_SHARED: dict[str, str] = {}
+
+
+def _shared(text: str) -> str:
+    """One string object for each of the few texts that recur in every signal ("d", "2H"), so a
+    large model keeps one copy of each rather than one per signal."""
+    kept = _SHARED.get(text)
+    if kept is None:
+        if len(_SHARED) >= 4096:
+            return text
+        kept = _SHARED[text] = text
+    return kept
+
 
 def _j_text(value: str) -> str:
     """A J value as written, with the decimal point and ASCII minus (what Coupling.text keeps)."""
@@ -383,6 +396,7 @@ class BlockBuilder(Transformer):
         name, components, broad, apparent, kind, multiplier = multiplicity_parts(written)
         if multiplier != 1 or kind == "AB" or "each" in count_text:
             return None
+        written, count_text = _shared(written), _shared(count_text)
         span = self.ctx.span
         mult = _new(Multiplicity, (name, span(d.start("m"), d.end("m")), written, components, broad,
                                    apparent, kind, multiplier))
@@ -667,9 +681,10 @@ class BlockBuilder(Transformer):
                 temperature = t if item.endswith("K") else round(t + 273.15, 2)
             else:
                 solvent, solvent_at = item, (at, at + len(item))
+        header_end = len(text.rstrip())
         hit = (lead, nucleus, decoupled, note, freq, freq_at, solvent,
                solvent_key(solvent) if solvent else None, solvent_at, temperature,
-               nucleus_end, len(text.rstrip()))
+               nucleus_end, header_end, text[lead:header_end])
         if len(fast.headers) < 4096:
             fast.headers[text] = hit
         return hit
@@ -677,7 +692,7 @@ class BlockBuilder(Transformer):
     def _header_spectrum(self, header: str, base: int, signals: list) -> Spectrum:
         """A spectrum whose header (at ``base``) was read as one HEADER match (the fast path)."""
         (lead, nucleus, decoupled, note, freq, freq_at, solvent, solvent_norm, solvent_at,
-         temperature, nucleus_end, header_end) = self._header_reading(header)
+         temperature, nucleus_end, header_end, header_text) = self._header_reading(header)
         ctx = self.ctx
         span = ctx.span
         if note is not None:
@@ -699,7 +714,7 @@ class BlockBuilder(Transformer):
             None,
             (),
             span(start, end),
-            ctx.text[start:end],
+            header_text,
             span(start, base + nucleus_end),
         )
 
