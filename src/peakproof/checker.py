@@ -9,7 +9,6 @@ severity overrides come from :class:`~peakproof.config.Config`.
 from __future__ import annotations
 
 
-from dataclasses import dataclass, field
 from typing import Any
 
 from .collector import collector_paused
@@ -19,12 +18,37 @@ from .span import Diagnostic, LineIndex
 _SEVERITY_RANK = {"error": 0, "warning": 1, "note": 2}
 
 
-@dataclass
 class CheckResult:
-    """Findings of one document and the coupling networks the rules used."""
+    """Findings of one document and the coupling networks the rules used.
 
-    diagnostics: list[Diagnostic]
-    networks: list[dict[str, Any]] = field(default_factory=list)
+    ``networks`` (plain JSON data, one entry per spectrum) is made on first use: only the JSON
+    report prints it, and building it for every check would cost a good part of the checking.
+    """
+
+    __slots__ = ("diagnostics", "_networks", "_pending")
+
+    def __init__(self, diagnostics: list[Diagnostic], networks: list[dict[str, Any]] | None = None,
+                 *, pending: list | None = None):
+        self.diagnostics = diagnostics
+        self._networks = networks
+        # (block index, spectrum index, spectrum, Context that may already hold its network)
+        self._pending = pending or []
+
+    @property
+    def networks(self) -> list[dict[str, Any]]:
+        if self._networks is None:
+            self._networks = [{"block": b, "spectrum": k, **ctx.network(spectrum).to_json()}
+                              for b, k, spectrum, ctx in self._pending]
+            self._pending = []
+        return self._networks
+
+    def __eq__(self, other: object) -> bool:
+        if not isinstance(other, CheckResult):
+            return NotImplemented
+        return (self.diagnostics, self.networks) == (other.diagnostics, other.networks)
+
+    def __repr__(self) -> str:
+        return f"CheckResult(diagnostics={self.diagnostics!r}, networks={self.networks!r})"
 
 
 def at_or_above(severity: str, threshold: str) -> bool:
@@ -54,7 +78,7 @@ def _check_document(document, config, formula, strict) -> CheckResult:
     rules = _enabled_rules(all_rules(), config, resolve_names)
     index = LineIndex(document.text)
     findings: list[Diagnostic] = list(_filtered_parse_diagnostics(document, config, resolve_names))
-    networks: list[dict[str, Any]] = []
+    pending: list = []
     neutral_override = _override_formula(config)
     for block in document.blocks:
         ctx = Context(document=document, config=config, index=index)
@@ -65,9 +89,7 @@ def _check_document(document, config, formula, strict) -> CheckResult:
             if rule.scope != "block" or rule.name in silenced:
                 continue
             findings.extend(_run(rule, rule.check, block, ctx, strict))
-        for k, spectrum in enumerate(block.spectra):
-            net = ctx.network(spectrum)
-            networks.append({"block": block.index, "spectrum": k, **net.to_json()})
+        pending.extend((block.index, k, spectrum, ctx) for k, spectrum in enumerate(block.spectra))
     doc_ctx = Context(document=document, config=config, index=index)
     for rule in rules:
         if rule.scope == "document":
@@ -76,7 +98,7 @@ def _check_document(document, config, formula, strict) -> CheckResult:
                 if rule.name not in _suppressed_at(document, d.span.start, resolve_names)
             )
     findings.sort(key=lambda d: (d.span.start, _SEVERITY_RANK[d.severity], d.rule))
-    return CheckResult(findings, networks)
+    return CheckResult(findings, pending=pending)
 
 
 def _run(rule, method, target, ctx, strict: bool) -> list[Diagnostic]:

@@ -8,7 +8,7 @@ first-order criterion.  The data are plain so a simulator can turn them into a s
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Any
 
 DEFAULT_TOLERANCE_HZ = 0.3
@@ -65,16 +65,21 @@ class CouplingNetwork:
     tolerance_hz: float
     nodes: tuple[Node, ...]
     edges: tuple[Edge, ...]
+    # (node, coupling or None) → its (other node, edge) pairs in edge order; made on first use
+    _by_end: dict | None = field(default=None, init=False, repr=False, compare=False)
 
     def partners(self, index: int, coupling: int | None = None) -> list[tuple[int, Edge]]:
         """(other node, edge) pairs of node ``index``, optionally only through one coupling."""
-        out = []
-        for e in self.edges:
-            if e.i == index and (coupling is None or e.i_coupling == coupling):
-                out.append((e.j, e))
-            elif e.j == index and (coupling is None or e.j_coupling == coupling):
-                out.append((e.i, e))
-        return out
+        by_end = self._by_end
+        if by_end is None:
+            by_end = {}
+            for e in self.edges:
+                for key in ((e.i, e.i_coupling), (e.i, None)):
+                    by_end.setdefault(key, []).append((e.j, e))
+                for key in ((e.j, e.j_coupling), (e.j, None)):
+                    by_end.setdefault(key, []).append((e.i, e))
+            object.__setattr__(self, "_by_end", by_end)
+        return list(by_end.get((index, coupling), ()))
 
     def to_json(self) -> dict[str, Any]:
         return {
@@ -99,37 +104,28 @@ def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> Coupling
     element = spectrum.element
     mhz = spectrum.frequency_mhz
     nodes = []
-    usable: list[list[tuple[int, float]]] = []
+    coupled: list[tuple[int, float, list[tuple[int, float]]]] = []  # nodes with a usable J
     for k, s in enumerate(spectrum.signals):
-        pairs = [(ci, c.value) for ci, c in enumerate(s.couplings) if homonuclear(c, element)]
-        usable.append(pairs)
-        nodes.append(
-            Node(
-                index=k,
-                shift_ppm=s.position,
-                count=s.count,
-                multiplicity=s.multiplicity.name if s.multiplicity else None,
-                j_hz=tuple(v for _, v in pairs),
-            )
-        )
+        pairs = [(ci, c.value) for ci, c in enumerate(s.couplings) if not c.nuclei or homonuclear(c, element)]
+        m = s.multiplicity
+        node = Node(k, s.position, s.count, m.name if m else None, tuple(v for _, v in pairs))
+        nodes.append(node)
+        if pairs:
+            coupled.append((k, node.shift_ppm, pairs))
     edges = []
     limit = tolerance + 1e-9
-    for a in range(len(nodes)):
-        if not usable[a]:
-            continue
-        for b in range(a + 1, len(nodes)):
-            if not usable[b]:
-                continue
-            for ci, va in usable[a]:
+    for x, (a, shift_a, pairs_a) in enumerate(coupled):
+        for b, shift_b, pairs_b in coupled[x + 1:]:
+            for ci, va in pairs_a:
                 best = None
-                for cj, vb in usable[b]:
+                for cj, vb in pairs_b:
                     diff = abs(va - vb)
                     if diff <= limit and (best is None or diff < best[0]):
                         best = (diff, cj, vb)
                 if best is None:
                     continue
                 _, cj, vb = best
-                delta = abs(nodes[a].shift_ppm - nodes[b].shift_ppm) * mhz if mhz else None
+                delta = abs(shift_a - shift_b) * mhz if mhz else None
                 edges.append(Edge(a, b, (va + vb) / 2, delta, ci, cj))
     return CouplingNetwork(spectrum.nucleus, mhz, tolerance, tuple(nodes), tuple(edges))
 
