@@ -6,13 +6,24 @@ from bisect import bisect_left, bisect_right
 
 import functools
 import re
+from typing import Any, NamedTuple
 
 from . import Rule
 from ._util import EXCHANGEABLE, fmt
 
 
+class _Tables(NamedTuple):
+    """One solvent's and nucleus's tabulated peaks, arranged for the rule's look-ups."""
+
+    peaks: tuple  # residual solvent signals, then accepted reference values
+    water: Any  # ReferencePeak of dissolved water (1H only) or None
+    lone: list  # (shift, compound, group) of single-group singlet impurities, by shift
+    lone_shifts: list[float]
+    several: list  # (compound, groups) of impurities with two or more groups, in table order
+
+
 @functools.cache
-def _tables(solvent: str, nucleus: str):
+def _tables(solvent: str, nucleus: str) -> _Tables | None:
     from ..impurities import UnknownSolvent, accepted_references, impurity_groups, residual_peaks, water_peak
 
     try:
@@ -25,7 +36,10 @@ def _tables(solvent: str, nucleus: str):
     by_compound: dict[str, list] = {}
     for g in groups:
         by_compound.setdefault(g.compound, []).append(g)
-    return residual, refs, water, by_compound
+    lone = sorted(((groups[0].shift, compound, groups[0]) for compound, groups in by_compound.items()
+                   if len(groups) == 1 and groups[0].multiplicity == "s"), key=lambda t: t[0])
+    several = [(compound, groups) for compound, groups in by_compound.items() if len(groups) >= 2]
+    return _Tables((*residual, *refs), water, lone, [t[0] for t in lone], several)
 
 
 def _compatible(reported, tabulated: str | None) -> bool:
@@ -78,53 +92,56 @@ class SolventCoincidence(Rule):
             tables = _tables(spectrum.solvent_normalized, spectrum.nucleus)
             if tables is None:
                 continue
-            residual, refs, water, by_compound = tables
-            tol = ctx.config.solvent_tolerance_1h if spectrum.nucleus == "1H" else ctx.config.solvent_tolerance_13c
+            proton = spectrum.nucleus == "1H"
+            tol = ctx.config.solvent_tolerance_1h if proton else ctx.config.solvent_tolerance_13c
+            near, water_near = tol + 1e-9, max(tol, 0.05) + 1e-9
+            water, lone, lone_shifts = tables.water, tables.lone, tables.lone_shifts
             flagged: set[int] = set()
-            # single-group impurities that are singlets, by shift (for a bisect per signal)
-            lone = sorted(((groups[0].shift, compound, groups[0]) for compound, groups in by_compound.items()
-                           if len(groups) == 1 and groups[0].multiplicity == "s"), key=lambda t: t[0])
-            lone_shifts = [t[0] for t in lone]
+            single = []  # (shift, index) of the signals with one shift, for the several-group pass
             for k, s in enumerate(spectrum.signals):
-                if not _single_shift(s):
+                if s.shift is None or s.range is not None:
                     continue
+                shift = s.shift
+                single.append((shift, k))
                 hit = None
-                for peak in (*residual, *refs):
-                    if abs(s.shift - peak.shift) <= tol + 1e-9 and _compatible(s.multiplicity, peak.multiplicity):
+                for peak in tables.peaks:
+                    if abs(shift - peak.shift) <= near and _compatible(s.multiplicity, peak.multiplicity):
                         hit = ("the residual solvent signal", f"{peak.label} {fmt(peak.shift, 2)}", peak.shift)
                         break
-                # an OH/NH assigned near water gets the benefit of the doubt unless it sits on it
-                exchangeable = bool(s.assignment and EXCHANGEABLE.search(s.assignment))
-                window = tol if exchangeable else max(tol, 0.05)
-                # a methyl-sized singlet or a group assigned to carbon (e.g. gem-dimethyl at 1.59
-                # in CDCl3) is the compound's own, not water
-                own_group = _looks_like_own_group(s) and not exchangeable
-                if hit is None and water is not None and not own_group and \
-                        abs(s.shift - water.shift) <= window + 1e-9:
-                    if _compatible(s.multiplicity, "s"):
+                if hit is None and water is not None and abs(shift - water.shift) <= water_near:
+                    # an OH/NH assigned near water gets the benefit of the doubt unless it sits on it
+                    exchangeable = bool(s.assignment and EXCHANGEABLE.search(s.assignment))
+                    window = tol if exchangeable else max(tol, 0.05)
+                    # a methyl-sized singlet or a group assigned to carbon (e.g. gem-dimethyl at
+                    # 1.59 in CDCl3) is the compound's own, not water
+                    own_group = _looks_like_own_group(s) and not exchangeable
+                    if not own_group and abs(shift - water.shift) <= window + 1e-9 and _compatible(s.multiplicity, "s"):
                         hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
-                if hit is None and spectrum.nucleus == "1H" and s.multiplicity is not None and \
+                if hit is None and proton and s.multiplicity is not None and \
                         s.multiplicity.name == "s" and not _looks_like_own_group(s):
-                    lo = bisect_left(lone_shifts, s.shift - 0.01 - 1e-9)
-                    hi = bisect_right(lone_shifts, s.shift + 0.01 + 1e-9)
+                    lo = bisect_left(lone_shifts, shift - 0.01 - 1e-9)
+                    hi = bisect_right(lone_shifts, shift + 0.01 + 1e-9)
                     if lo < hi:  # the nearest tabulated singlet within 0.01 ppm
-                        shift, compound, _ = min(lone[lo:hi], key=lambda t: abs(t[0] - s.shift))
-                        hit = (compound, f"{compound} {fmt(shift, 2)}", shift)
+                        tab, compound, _ = min(lone[lo:hi], key=lambda t: abs(t[0] - shift))
+                        hit = (compound, f"{compound} {fmt(tab, 2)}", tab)
                 if hit is not None:
                     flagged.add(k)
                     yield self._hit(s, hit[0], hit[1], hit[2], spectrum.solvent_normalized)
             # several-group impurities: every group listed (within tolerance, compatible letters);
             # the listed shifts are sorted once so each group looks only at its neighbours
-            single = sorted((s.shift, k) for k, s in enumerate(spectrum.signals) if _single_shift(s))
+            if not single:
+                continue
+            single.sort()
             shifts = [x for x, _ in single]
             signals = spectrum.signals
-            for compound, groups in by_compound.items():
-                if len(groups) < 2:
-                    continue
+            for compound, groups in tables.several:
                 matched = []
                 for g in groups:
                     lo = bisect_left(shifts, g.shift - tol - 1e-9)
-                    hi = bisect_right(shifts, g.shift + tol + 1e-9)
+                    top = g.shift + tol + 1e-9
+                    if lo == len(shifts) or shifts[lo] > top:
+                        break  # no listed signal near this group
+                    hi = bisect_right(shifts, top, lo)
                     k = min((single[i][1] for i in range(lo, hi) if single[i][1] not in flagged
                              and _compatible(signals[single[i][1]].multiplicity, g.multiplicity)), default=None)
                     if k is None:
@@ -133,7 +150,7 @@ class SolventCoincidence(Rule):
                 else:
                     for k, g in matched:
                         flagged.add(k)
-                        s = spectrum.signals[k]
+                        s = signals[k]
                         yield self._hit(s, compound, f"{compound} {g.group} {fmt(g.shift, 2)}", g.shift,
                                         spectrum.solvent_normalized)
 
