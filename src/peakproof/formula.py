@@ -116,7 +116,7 @@ class Formula:
     written and ``radical`` whether a radical dot was written.
     """
 
-    __slots__ = ("_counts", "charge", "text", "radical", "_key")
+    __slots__ = ("_counts", "charge", "text", "radical", "_key", "_totals")
 
     def __init__(
         self,
@@ -141,6 +141,7 @@ class Formula:
         object.__setattr__(self, "radical", bool(radical))
         key = (tuple(sorted(clean.items())), int(charge))
         object.__setattr__(self, "_key", key)
+        object.__setattr__(self, "_totals", None)  # element totals, looked up on first use
 
     def __setattr__(self, name: str, value: Any) -> None:
         raise AttributeError("Formula is immutable")
@@ -174,7 +175,11 @@ class Formula:
         """Atoms of ``element``; with ``include_isotopes`` H counts D and T, C counts 13C."""
         if not include_isotopes:
             return _number(self._counts.get(element, 0))
-        return _element_totals(self._key).get(element, 0)
+        totals = self._totals
+        if totals is None:
+            totals = _element_totals(self._key)
+            object.__setattr__(self, "_totals", totals)
+        return totals.get(element, 0)
 
     def elements(self) -> tuple[str, ...]:
         """Elements present (isotopes folded into their element), in Hill order."""
@@ -246,7 +251,15 @@ class Formula:
     __rmul__ = __mul__
 
     def with_charge(self, charge: int, radical: bool = False) -> Formula:
-        return Formula(self._counts, charge, self.text, radical)
+        charge, radical = int(charge), bool(radical)
+        if charge == self.charge and radical == self.radical:
+            return self  # immutable, so the formula itself is the copy
+        # the counts are already clean and sorted: share them instead of cleaning them again
+        other = object.__new__(Formula)
+        for name, value in (("_counts", self._counts), ("charge", charge), ("text", self.text),
+                            ("radical", radical), ("_key", (self._key[0], charge)), ("_totals", self._totals)):
+            object.__setattr__(other, name, value)
+        return other
 
     def neutral(self) -> Formula:
         return self.with_charge(0)
