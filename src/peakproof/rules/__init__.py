@@ -152,6 +152,18 @@ class Context:
     independent_formula: Any = None  # the formula from a source other than HRMS, for judging HRMS
     index: Any = None  # LineIndex of the document
     _networks: dict[int, Any] = field(default_factory=dict)
+    _shared: dict[Any, Any] = field(default_factory=dict)
+
+    def shared(self, name: str, about, compute):
+        """``compute()`` once per fact ``name`` about the object ``about`` (a block, a spectrum):
+        facts that several rules consult are worked out once."""
+        key = (name, id(about))
+        held = self._shared.get(key)
+        if held is not None and held[0] is about:
+            return held[1]
+        value = compute()
+        self._shared[key] = (about, value)  # holding ``about`` keeps its id from being reused
+        return value
 
     def network(self, spectrum):
         """The coupling network of ``spectrum`` (computed once, shared by rules and output)."""

@@ -40,7 +40,12 @@ def _hetero_unlisted(block, ctx) -> bool:
 
 
 def _unmatched_homonuclear(block, ctx):
-    """(spectrum, index, signal, coupling index) for 1H J values with no partner in the network."""
+    """(spectrum, index, signal, coupling index) for 1H J values with no partner in the network
+    (made once per block: coupling-near-miss and coupling-no-partner both go through them)."""
+    return ctx.shared("unmatched-homonuclear", block, lambda: list(_find_unmatched(block, ctx)))
+
+
+def _find_unmatched(block, ctx):
     for spectrum in block.spectra:
         if spectrum.nucleus != "1H":
             continue
@@ -95,7 +100,7 @@ class CouplingNearMiss(Rule):
     def check(self, block, ctx):
         tol, near = ctx.config.coupling_tolerance, ctx.config.near_miss
         reported: set[frozenset] = set()
-        orphans = list(_unmatched_homonuclear(block, ctx))
+        orphans = _unmatched_homonuclear(block, ctx)
         orphan_keys = {(id(sp), k, ci) for sp, k, _, ci in orphans}
         for spectrum, k, signal, ci in orphans:
             c = signal.couplings[ci]

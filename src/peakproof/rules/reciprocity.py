@@ -36,7 +36,7 @@ class ReciprocityCount(Rule):
 
         tol = ctx.config.coupling_tolerance + 1e-9
         for spectrum in block.spectra:
-            net = ctx.network(spectrum)
+            net = None  # built when a homonuclear J first needs its partners
             element = spectrum.element
             for k, signal in enumerate(spectrum.signals):
                 m = signal.multiplicity
@@ -80,6 +80,8 @@ class ReciprocityCount(Rule):
                             and abs(signal.couplings[cj].value - c.value) <= tol]
                     done.update(same)
                     needed = sum(PARTNERS[m.components[cj]] for cj in same)
+                    if net is None:
+                        net = ctx.network(spectrum)
                     nodes = {other for cj in same for other, _ in net.partners(k, cj)}
                     if not nodes:
                         continue  # no partner at all: coupling-no-partner

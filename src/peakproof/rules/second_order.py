@@ -7,6 +7,14 @@ from ._util import fmt, signal_label
 
 
 def _first_order_pairs(spectrum, ctx):
+    """(signal, signal, edge) of first-order partners with a Δν/J, once per spectrum and block
+    (both second-order rules judge them)."""
+    return ctx.shared("first-order-pairs", spectrum, lambda: list(_find_first_order_pairs(spectrum, ctx)))
+
+
+def _find_first_order_pairs(spectrum, ctx):
+    if not any(s.couplings for s in spectrum.signals):
+        return  # no J values, no edges (and no network to build for it)
     net = ctx.network(spectrum)
     seen = set()
     for edge in net.edges:
