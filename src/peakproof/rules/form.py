@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import re
-from collections import Counter
 
 from . import Rule, suggestion
 from ._util import fmt, number_edit_span
@@ -45,14 +44,14 @@ class ShiftOrder(Rule):
             if len(signals) < 2:
                 continue
             pos = [s.position for s in signals]
-            ascending = all(a <= b for a, b in zip(pos, pos[1:]))
-            if either and ascending:
-                continue
-            for a, b in zip(signals, signals[1:]):
-                if b.position > a.position + 1e-9:
+            if either and all(a <= b for a, b in zip(pos, pos[1:])):
+                continue  # ascending
+            for x in range(1, len(pos)):
+                if pos[x] > pos[x - 1] + 1e-9:
+                    a, b = signals[x - 1], signals[x]
                     yield self.finding(b.shift_span or b.span, here=b.shift_text, before=a.shift_text,
                                        order="descending",
-                                       data={"shift": b.position, "previous": a.position})
+                                       data={"shift": pos[x], "previous": pos[x - 1]})
                     break
 
 
@@ -75,23 +74,27 @@ class MixedDecimals(Rule):
 
     def check(self, block, ctx):
         for spectrum in block.spectra:
-            signals = [s for s in _shifted(spectrum) if s.shift is not None]
+            signals = [s for s in spectrum.signals if s.shift is not None]
             if len(signals) < 3:
                 continue
-            counts = Counter(s.decimals for s in signals)
-            usual, n = counts.most_common(1)[0]
-            if n <= len(signals) / 2:
+            decimals = [s.decimals for s in signals]
+            tally: dict[int, int] = {}
+            for d in decimals:
+                tally[d] = tally.get(d, 0) + 1
+            usual = max(tally, key=tally.__getitem__)  # the first-met of the commonest
+            n = tally[usual]
+            if n <= len(signals) / 2 or n == len(signals):
                 continue
-            for k, s in enumerate(signals):
-                if s.decimals == usual:
+            for s, d in zip(signals, decimals):
+                if d == usual:
                     continue
-                if s.decimals > usual and any(
+                if d > usual and any(
                     abs(o.shift - s.shift) < 10 ** -usual + 1e-9 for o in signals if o is not s
                 ):
                     continue  # extra digits to separate close peaks
-                yield self.finding(s.shift_span or s.span, shift=s.shift_text, decimals=s.decimals,
+                yield self.finding(s.shift_span or s.span, shift=s.shift_text, decimals=d,
                                    nucleus=spectrum.nucleus, usual=usual,
-                                   data={"decimals": s.decimals, "usual": usual})
+                                   data={"decimals": d, "usual": usual})
 
 
 class ShiftOutOfRange(Rule):
@@ -124,8 +127,10 @@ class ShiftOutOfRange(Rule):
             if spectrum.nucleus == "1H" and metal:
                 low = -40.0  # metal hydrides
             for s in _shifted(spectrum):
-                values = s.range if s.range else (s.shift,)
-                if all(low <= v <= high for v in values):
+                if s.range:
+                    if all(low <= v <= high for v in s.range):
+                        continue
+                elif low <= s.shift <= high:
                     continue
                 hint = ""
                 fix = None

@@ -75,11 +75,17 @@ class ReciprocityCount(Rule):
                             )
                         continue
                     # equal J values on several letters add up (dt with J = 7, 7 ⇒ 3 partners)
-                    same = [cj for cj in range(ci, len(signal.couplings))
-                            if homonuclear(signal.couplings[cj], element)
-                            and abs(signal.couplings[cj].value - c.value) <= tol]
+                    if len(signal.couplings) == 1:
+                        same = [ci]  # c itself (homonuclear, as the branch above has shown)
+                    else:
+                        same = [cj for cj in range(ci, len(signal.couplings))
+                                if homonuclear(signal.couplings[cj], element)
+                                and abs(signal.couplings[cj].value - c.value) <= tol]
                     done.update(same)
                     needed = sum(PARTNERS[m.components[cj]] for cj in same)
+                    # A d is exempt: symmetric AA'XX' pairs (2H beside 2H) are written d.
+                    if needed < 2:
+                        continue
                     if net is None:
                         net = ctx.network(spectrum)
                     nodes = {other for cj in same for other, _ in net.partners(k, cj)}
@@ -90,8 +96,8 @@ class ReciprocityCount(Rule):
                         continue
                     total = sum(counts)
                     # n equivalent partners: some of the signals carrying this J must hold exactly
-                    # n nuclei. A d is exempt: symmetric AA'XX' pairs (2H beside 2H) are written d.
-                    if needed < 2 or _accounted(counts, needed, signal.count) or _hidden_partners(spectrum, k):
+                    # n nuclei.
+                    if _accounted(counts, needed, signal.count) or _hidden_partners(spectrum, k):
                         continue
                     if _in_other_list(block, spectrum, c.value, tol):
                         continue  # part of the splitting is likely from 19F or 31P
