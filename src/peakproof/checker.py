@@ -83,7 +83,9 @@ def _check_document(document, config, formula, strict) -> CheckResult:
     for block in document.blocks:
         ctx = Context(document=document, config=config, index=index)
         ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
-        ctx.independent_formula = block_formula(block, neutral_override, index, independent=True)[0]
+        # without HRMS the search finds the same formula again unless HRMS was its source
+        ctx.independent_formula = ctx.formula if ctx.formula_source != "HRMS" else \
+            block_formula(block, neutral_override, index, independent=True)[0]
         silenced = _suppressed(block, resolve_names)
         for rule in rules:
             if rule.scope != "block" or rule.name in silenced:

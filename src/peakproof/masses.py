@@ -9,7 +9,7 @@ isotopes written explicitly (D, 13C, [15N]) count with their own mass in every f
 from __future__ import annotations
 
 import json
-from functools import cache
+from functools import cache, lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -84,8 +84,13 @@ def _atom_mass(symbol: str, table: dict[str, float], what: str) -> float:
 
 def monoisotopic_mass(formula: Formula | str) -> float:
     """Mass of the neutral atoms, most abundant isotope of each element (electrons included)."""
+    return _monoisotopic(_formula(formula))
+
+
+@lru_cache(maxsize=4096)
+def _monoisotopic(f: Formula) -> float:
+    """Formulas are immutable and the checker asks for one ion's mass several times."""
     table = _most_abundant()
-    f = _formula(formula)
     return sum(n * _atom_mass(s, table, "isotope mass") for s, n in f.counts.items())
 
 

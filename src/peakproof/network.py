@@ -108,8 +108,8 @@ def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> Coupling
     element = spectrum.element
     mhz = spectrum.frequency_mhz
     nodes = []
-    coupled: list[tuple[int, float, list[tuple[int, float]]]] = []  # nodes with a usable J
-    new = tuple.__new__  # Node's fields in order, without the keyword-handling constructor
+    coupled = []  # (node, shift, its usable (coupling, J) pairs, lowest J, highest J)
+    new = tuple.__new__  # a record's fields in order, without the keyword-handling constructor
     for k, s in enumerate(spectrum.signals):
         m = s.multiplicity
         shift = s.shift if s.shift is not None else s.position
@@ -117,13 +117,16 @@ def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> Coupling
             pairs = [(ci, c.value) for ci, c in enumerate(s.couplings) if not c.nuclei or homonuclear(c, element)]
             nodes.append(new(Node, (k, shift, s.count, m.name if m else None, tuple([v for _, v in pairs]))))
             if pairs:
-                coupled.append((k, shift, pairs))
+                values = [v for _, v in pairs]
+                coupled.append((k, shift, pairs, min(values), max(values)))
         else:
             nodes.append(new(Node, (k, shift, s.count, m.name if m else None, ())))
     edges = []
     limit = tolerance + 1e-9
-    for x, (a, shift_a, pairs_a) in enumerate(coupled):
-        for b, shift_b, pairs_b in coupled[x + 1:]:
+    for x, (a, shift_a, pairs_a, low_a, high_a) in enumerate(coupled):
+        for b, shift_b, pairs_b, low_b, high_b in coupled[x + 1:]:
+            if low_b - high_a > limit or low_a - high_b > limit:
+                continue  # every J of one is further than the tolerance from every J of the other
             for ci, va in pairs_a:
                 best = None
                 for cj, vb in pairs_b:
@@ -134,7 +137,7 @@ def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> Coupling
                     continue
                 _, cj, vb = best
                 delta = abs(shift_a - shift_b) * mhz if mhz else None
-                edges.append(Edge(a, b, (va + vb) / 2, delta, ci, cj))
+                edges.append(new(Edge, (a, b, (va + vb) / 2, delta, ci, cj)))
     return CouplingNetwork(spectrum.nucleus, mhz, tolerance, tuple(nodes), tuple(edges))
 
 

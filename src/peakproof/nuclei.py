@@ -131,11 +131,20 @@ def normalize_symbol(symbol: str) -> str:
     return f"{int(mass)}{element[0].upper()}{element[1:].lower()}"
 
 
+#: spelling → Nucleus for spellings already looked up (the checker asks for the same few often)
+_BY_SPELLING: dict[str, Nucleus] = {}
+
+
 def nucleus(symbol: str) -> Nucleus:
     """Look a nucleus up by any usual spelling ("13C", "¹³C", "C13", "13 C")."""
+    known = _BY_SPELLING.get(symbol) if isinstance(symbol, str) else None
+    if known is not None:
+        return known
     table = _nuclei()
     canonical = normalize_symbol(symbol)
     if canonical in table:
+        if len(_BY_SPELLING) < 1024:
+            _BY_SPELLING[symbol] = table[canonical]
         return table[canonical]
     suggestions = _close_matches(canonical)
     raise UnknownNucleus(_message(symbol, suggestions), symbol, suggestions)

@@ -89,8 +89,9 @@ def percentages(formula_text: str):
 
 
 def clear_caches() -> None:
-    """Forget parsed formulas (benchmarks measure a cold start with this)."""
+    """Forget parsed formulas and their masses (benchmarks measure a cold start with this)."""
+    from ..masses import _monoisotopic
     from .mass_spec import _intended_ion
 
-    for cached in (formula, ion_type, neutral_of, percentages, _intended_ion):
+    for cached in (formula, ion_type, neutral_of, percentages, _intended_ion, _monoisotopic):
         cached.cache_clear()
