@@ -80,17 +80,17 @@ def _check_document(document, config, formula, strict) -> CheckResult:
     findings: list[Diagnostic] = list(_filtered_parse_diagnostics(document, config, resolve_names))
     pending: list = []
     neutral_override = _override_formula(config)
+    block_rules = [rule for rule in rules if rule.scope == "block"]
     for block in document.blocks:
         ctx = Context(document=document, config=config, index=index)
         ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
         # without HRMS the search finds the same formula again unless HRMS was its source
         ctx.independent_formula = ctx.formula if ctx.formula_source != "HRMS" else \
             block_formula(block, neutral_override, index, independent=True)[0]
-        silenced = _suppressed(block, resolve_names)
-        for rule in rules:
-            if rule.scope != "block" or rule.name in silenced:
-                continue
-            findings.extend(_run(rule, rule.check, block, ctx, strict))
+        silenced = _suppressed(block, resolve_names) if block.suppressed else ()
+        for rule in block_rules:
+            if rule.name not in silenced:
+                _run_into(findings, rule, block, ctx, strict)
         pending.extend((block.index, k, spectrum, ctx) for k, spectrum in enumerate(block.spectra))
     doc_ctx = Context(document=document, config=config, index=index)
     for rule in rules:
@@ -109,10 +109,26 @@ def _run(rule, method, target, ctx, strict: bool) -> list[Diagnostic]:
     except Exception as exc:  # a rule bug must not hide the other findings
         if strict:
             raise
-        span = target.span if hasattr(target, "span") else LineIndex(ctx.document.text).span(0, 0)
-        return [Diagnostic(rule="internal-error", severity="note", span=span, code="",
-                           message=f"rule {rule.name} could not run here ({type(exc).__name__}: {exc}); "
-                                   "please report this with the text that caused it")]
+        return [_internal_error(rule, target, ctx, exc)]
+
+
+def _run_into(findings: list[Diagnostic], rule, block, ctx, strict: bool) -> None:
+    """``_run`` of a block rule, its findings added to ``findings`` (all of them or none)."""
+    mark = len(findings)
+    try:
+        findings.extend(rule.check(block, ctx))
+    except Exception as exc:  # a rule bug must not hide the other findings
+        del findings[mark:]
+        if strict:
+            raise
+        findings.append(_internal_error(rule, block, ctx, exc))
+
+
+def _internal_error(rule, target, ctx, exc: Exception) -> Diagnostic:
+    span = target.span if hasattr(target, "span") else LineIndex(ctx.document.text).span(0, 0)
+    return Diagnostic(rule="internal-error", severity="note", span=span, code="",
+                      message=f"rule {rule.name} could not run here ({type(exc).__name__}: {exc}); "
+                              "please report this with the text that caused it")
 
 
 def _enabled_rules(classes, config: Config, resolve_names) -> list:

@@ -352,7 +352,7 @@ def parse_formula(text: str) -> Formula:
     if simple is not None:  # "C12H14O3Na": element and count pairs only, read without the parser
         counts: dict[str, int] = {}
         for symbol, digits in _ELEMENT_COUNT.findall(text):
-            if symbol not in ELEMENT_SYMBOLS or symbol in ("D", "T") or digits.startswith("0"):
+            if symbol not in _ELEMENTS or symbol in ("D", "T") or digits.startswith("0"):
                 break  # unknown symbols, isotopes, zero counts: the grammar reads (or explains) it
             counts[symbol] = counts.get(symbol, 0) + (int(digits) if digits else 1)
         else:

@@ -2,16 +2,13 @@
 
 from __future__ import annotations
 
+from ..formula import FormulaError
+from ..masses import MassError
 from . import Rule, suggestion
-from ._util import fmt
+from ._util import fmt, percentages
 
 
 def _percentages(analysis):
-    from ..formula import FormulaError
-    from ..masses import MassError
-
-    from ._util import percentages
-
     if not analysis.formula:
         return None
     try:

@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
+from ..formula import FormulaError
 from . import Rule
+from ._util import formula as parse_formula, neutral_of as neutral_from_ion
 
 
 class FormulaMismatch(Rule):
@@ -23,9 +25,6 @@ class FormulaMismatch(Rule):
     )
 
     def check(self, block, ctx):
-        from ..formula import FormulaError
-        from ._util import formula as parse_formula, neutral_of as neutral_from_ion
-
         reference = ctx.formula
         if reference is None:
             return

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import re
 
+from ..nuclei import UnknownNucleus, expected_frequency, proton_frequency
 from . import Rule, suggestion
 from ._util import fmt
 
@@ -51,8 +52,6 @@ class ProtonFrequencyOnHeteronucleus(Rule):
     )
 
     def check(self, block, ctx):
-        from ..nuclei import UnknownNucleus, expected_frequency, proton_frequency
-
         proton = _proton_mhz(block)
         for s in block.spectra:
             if s.nucleus == "1H" or not s.frequency_mhz:
@@ -94,8 +93,6 @@ class FrequencyMismatch(Rule):
     )
 
     def check(self, block, ctx):
-        from ..nuclei import UnknownNucleus, expected_frequency, proton_frequency
-
         proton = _proton_mhz(block)
         if not proton:
             return

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import functools
 
+from ..formula import FormulaError, ion_formula, neutral_from_ion
+from ..masses import MassError, mz, mz_without_electron, ppm_error
 from . import Rule, _util, suggestion
 from ._util import fmt
 
@@ -26,8 +28,6 @@ def _intended_ion(formula_text, ion_text, independent):
     compound's formula written); the returned formula is then the corrected one, so the calcd
     and found checks judge the numbers against the ion the author meant.
     """
-    from ..formula import FormulaError, ion_formula, neutral_from_ion
-
     try:
         written = _util.formula(formula_text)
     except FormulaError:
@@ -80,8 +80,6 @@ class HrmsCalcd(Rule):
     )
 
     def check(self, block, ctx):
-        from ..masses import MassError, mz, mz_without_electron
-
         for ms in block.mass_spec:
             ion = intended_ion(ms, ctx)
             if ion is None or ms.calcd is None or not ms.calcd_text:
@@ -129,8 +127,6 @@ class HrmsFound(Rule):
     )
 
     def check(self, block, ctx):
-        from ..masses import MassError, mz, ppm_error
-
         for ms in block.mass_spec:
             if ms.found is None:
                 continue

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from ..model import PARTNERS
 from ..network import homonuclear
+from ..nuclei import UnknownNucleus, nucleus
 from . import Rule
 from ._util import fmt, signal_label
 
@@ -32,8 +33,6 @@ class ReciprocityCount(Rule):
     )
 
     def check(self, block, ctx):
-        from ..nuclei import UnknownNucleus, nucleus
-
         tol = ctx.config.coupling_tolerance + 1e-9
         for spectrum in block.spectra:
             net = None  # built when a homonuclear J first needs its partners
