@@ -13,6 +13,8 @@ from typing import Any
 
 from .collector import collector_paused
 from .config import Config
+from .formula import FormulaError
+from .rules._util import formula as parse_formula, neutral_of as neutral_from_ion
 from .span import Diagnostic, LineIndex
 
 _SEVERITY_RANK = {"error": 0, "warning": 1, "note": 2}
@@ -189,9 +191,6 @@ def block_formula(block, override=None, index: LineIndex | None = None, *, indep
     Order: ``--formula``, the HRMS ion formula minus the adduct, the elemental-analysis formula,
     the formula written by the compound.  ``independent`` skips HRMS (to judge the HRMS formula).
     """
-    from .formula import FormulaError
-    from .rules._util import formula as parse_formula, neutral_of as neutral_from_ion
-
     if override is not None:
         return override, "--formula", None
     if not independent:

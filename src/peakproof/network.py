@@ -74,6 +74,13 @@ class CouplingNetwork:
 
     def partners(self, index: int, coupling: int | None = None) -> list[tuple[int, Edge]]:
         """(other node, edge) pairs of node ``index``, optionally only through one coupling."""
+        return list(self._ends().get((index, coupling), ()))
+
+    def has_partner(self, index: int, coupling: int | None = None) -> bool:
+        """Whether ``partners(index, coupling)`` is not empty."""
+        return (index, coupling) in self._ends()
+
+    def _ends(self) -> dict:
         by_end = self._by_end
         if by_end is None:
             by_end = {}
@@ -83,7 +90,7 @@ class CouplingNetwork:
                 for key in ((e.j, e.j_coupling), (e.j, None)):
                     by_end.setdefault(key, []).append((e.i, e))
             object.__setattr__(self, "_by_end", by_end)
-        return list(by_end.get((index, coupling), ()))
+        return by_end
 
     def to_json(self) -> dict[str, Any]:
         return {

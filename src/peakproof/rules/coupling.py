@@ -52,7 +52,7 @@ def _find_unmatched(block, ctx):
         net = ctx.network(spectrum)
         for k, signal in enumerate(spectrum.signals):
             for ci, c in enumerate(signal.couplings):
-                if not homonuclear(c, "H") or net.partners(k, ci) or _within_ab(signal, ci):
+                if not homonuclear(c, "H") or net.has_partner(k, ci) or _within_ab(signal, ci):
                     continue
                 yield spectrum, k, signal, ci
 

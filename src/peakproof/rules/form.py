@@ -224,7 +224,7 @@ class MissingHz(Rule):
             for s in spectrum.signals:
                 if not s.couplings or s.details_span is None:
                     continue
-                if "Hz" in text[s.details_span.start : s.details_span.end]:
+                if text.find("Hz", s.details_span.start, s.details_span.end) >= 0:
                     continue
                 last = number_edit_span(ctx, s.couplings[-1])
                 yield self.finding(
