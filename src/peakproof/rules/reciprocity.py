@@ -96,7 +96,7 @@ class ReciprocityCount(Rule):
                     total = sum(counts)
                     # n equivalent partners: some of the signals carrying this J must hold exactly
                     # n nuclei.
-                    if _accounted(counts, needed, signal.count) or _hidden_partners(spectrum, k):
+                    if _accounted(counts, needed, signal.count) or _hidden_partners(ctx, spectrum, k):
                         continue
                     if _in_other_list(block, spectrum, c.value, tol):
                         continue  # part of the splitting is likely from 19F or 31P
@@ -134,9 +134,10 @@ def _in_other_list(block, spectrum, value: float, tol: float) -> bool:
     )
 
 
-def _hidden_partners(spectrum, skip: int) -> bool:
-    return any(
-        k != skip and not s.couplings and s.multiplicity is not None
-        and s.multiplicity.kind in ("multiplet", "broad", "AB")
-        for k, s in enumerate(spectrum.signals)
-    )
+def _hidden_partners(ctx, spectrum, skip: int) -> bool:
+    """Whether a signal other than ``skip`` is a multiplet without J values (m, br, AB)."""
+    hidden = ctx.shared("j-less multiplets", spectrum, lambda: [
+        k for k, s in enumerate(spectrum.signals)
+        if not s.couplings and s.multiplicity is not None and s.multiplicity.kind in ("multiplet", "broad", "AB")
+    ])
+    return any(k != skip for k in hidden)

@@ -16,16 +16,18 @@ def _find_first_order_pairs(spectrum, ctx):
     if not any(s.couplings for s in spectrum.signals):
         return  # no J values, no edges (and no network to build for it)
     net = ctx.network(spectrum)
+    signals = spectrum.signals
+    first_order = [m is not None and m.kind == "first-order" and not m.apparent
+                   for m in (s.multiplicity for s in signals)]
     seen = set()
     for edge in net.edges:
-        if edge.ratio is None or (edge.i, edge.j) in seen:
+        if edge.delta_nu_hz is None or edge.j_hz == 0:
+            continue  # no Δν/J (edge.ratio is None)
+        pair = (edge.i, edge.j)
+        if pair in seen or not (first_order[edge.i] and first_order[edge.j]):
             continue
-        a, b = spectrum.signals[edge.i], spectrum.signals[edge.j]
-        if not all(s.multiplicity is not None and s.multiplicity.kind == "first-order"
-                   and not s.multiplicity.apparent for s in (a, b)):
-            continue
-        seen.add((edge.i, edge.j))
-        yield a, b, edge
+        seen.add(pair)
+        yield signals[edge.i], signals[edge.j], edge
 
 
 def _exact_effect(a, b, edge, field_mhz):
