@@ -38,14 +38,19 @@ def block_has_element(block, ctx, symbol: str) -> bool:
     (a spectrum of that element, or a coupling written with it, e.g. 19F NMR or J(C,F))."""
     if has_element(ctx.formula, symbol):
         return True
+    return symbol in ctx.shared("evident elements", block, lambda: _evident_elements(block))
+
+
+def _evident_elements(block) -> set[str]:
+    """Elements of the block's spectra and of the nuclei its couplings name."""
+    found = set()
     for spectrum in block.spectra:
-        if spectrum.element == symbol:
-            return True
+        found.add(spectrum.element)
         for signal in spectrum.signals:
             for c in signal.couplings:
-                if c.nuclei and symbol in {n.lstrip("0123456789") for n in c.nuclei}:
-                    return True
-    return False
+                if c.nuclei:
+                    found.update(n.lstrip("0123456789") for n in c.nuclei)
+    return found
 
 
 def signal_label(signal) -> str:

@@ -197,7 +197,7 @@ class LargeHHCoupling(Rule):
                 continue
             for signal in spectrum.signals:
                 for c in signal.couplings:
-                    if homonuclear(c, "H") and c.value > 20.0:
+                    if c.value > 20.0 and homonuclear(c, "H"):
                         yield self.finding(number_edit_span(ctx, c), j=c.text or fmt(c.value, 2),
                                            data={"j_hz": c.value, "limit_hz": 20.0})
 
