@@ -51,8 +51,11 @@ def _find_unmatched(block, ctx):
             continue
         net = ctx.network(spectrum)
         for k, signal in enumerate(spectrum.signals):
+            if not signal.couplings:
+                continue
+            ab = signal.multiplicity is not None and signal.multiplicity.kind == "AB"
             for ci, c in enumerate(signal.couplings):
-                if not homonuclear(c, "H") or net.has_partner(k, ci) or _within_ab(signal, ci):
+                if (c.nuclei and not homonuclear(c, "H")) or net.has_partner(k, ci) or (ab and _within_ab(signal, ci)):
                     continue
                 yield spectrum, k, signal, ci
 
