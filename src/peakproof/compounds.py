@@ -23,7 +23,8 @@ from .span import LineIndex
 
 _LABEL_TEXT = r"\d{1,3}[a-z]?['′]?|[IVX]{1,5}[a-z]?|S\d{1,3}[a-z]?"
 _FORMULA_TEXT = r"C\d{1,3}H\d{0,3}(?:[A-Z][a-z]?\d{0,3})*"
-_HEADING = re.compile(r"^[ \t]*(?:#{1,6}[ \t]+)?(?P<title>\S[^\n]{0,200}?)[ \t]*$", re.M)
+# The title is taken greedily (fast) and its trailing blanks stripped where it is read.
+_HEADING = re.compile(r"^[ \t]*(?:#{1,6}[ \t]+)?(?P<title>\S[^\n]{0,200})[ \t]*$", re.M)
 # "(12)", "(12), C10H9NO2", "(12; C10H9NO2)", at the end of a heading line
 _LABEL_AT_END = re.compile(
     rf"\((?P<label>{_LABEL_TEXT})(?:\s*[;,]\s*(?P<inner>{_FORMULA_TEXT}))?\)"
@@ -61,7 +62,7 @@ class _Found:
 def _compound_before(before: str) -> _Found | None:
     """The nearest heading or label before a block; offsets are in ``before``."""
     for m in reversed(list(_HEADING.finditer(before))):
-        title = m.group("title")
+        title = m.group("title").rstrip(" \t")
         if len(title) > _MAX_TITLE:
             continue
         label = _LABEL_AT_END.search(title)
