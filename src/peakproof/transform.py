@@ -398,8 +398,9 @@ class BlockBuilder(Transformer):
             return None
         written, count_text = _shared(written), _shared(count_text)
         span = self.ctx.span
-        mult = _new(Multiplicity, (name, span(d.start("m"), d.end("m")), written, components, broad,
-                                   apparent, kind, multiplier))
+        where = d.span
+        mult = _new(Multiplicity, (name, span(*where("m")), written, components, broad, apparent, kind,
+                                   multiplier))
         couplings: tuple[Coupling, ...] = ()
         if j1 is not None:
             bonds, nuclei, lab = coupling_label(label)
@@ -407,27 +408,31 @@ class BlockBuilder(Transformer):
             couplings = (_new(Coupling, (number(j1), span(label_start, d.end("j1")), _j_text(j1),
                                          nuclei, bonds, lab)),)
             if j2 is not None:
-                couplings += (_new(Coupling, (number(j2), span(d.start("j2"), d.end("j2")),
-                                              _j_text(j2), None, None, None)),)
+                couplings += (_new(Coupling, (number(j2), span(*where("j2")), _j_text(j2), None, None,
+                                              None)),)
                 if j3 is not None:
-                    couplings += (_new(Coupling, (number(j3), span(d.start("j3"), d.end("j3")),
-                                                  _j_text(j3), None, None, None)),)
+                    couplings += (_new(Coupling, (number(j3), span(*where("j3")), _j_text(j3), None,
+                                                  None, None)),)
         n, nucleus, _ = _count_value(count_text)
-        s_start = d.start("s")
-        s_end = d.end("s") if s2 is None else d.end("s2")
+        s_start, s_end = where("s")
+        if s2 is None:
+            shift, shift_range, shift_text = number(s1), None, s1
+        else:
+            s_end = d.end("s2")
+            shift, shift_range, shift_text = None, (number(s1), number(s2)), self.ctx.parsed[s_start:s_end]
         d_end = d.end("close")
         return _new(Signal, (
             span(s_start, d_end),
-            number(s1) if s2 is None else None,
-            None if s2 is None else (number(s1), number(s2)),
-            self.ctx.parsed[s_start:s_end],
+            shift,
+            shift_range,
+            shift_text,
             span(s_start, s_end),
             mult,
             couplings,
             n,
             nucleus,
             count_text,
-            span(d.start("c"), d.end("c")),
+            span(*where("c")),
             None,
             (),
             span(d.start("open"), d_end),
