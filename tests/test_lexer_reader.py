@@ -75,3 +75,24 @@ def test_reader_ends_where_the_pattern_ends_on_the_corpus(damaged, name):
 def test_reader_ends_where_the_pattern_ends_on_generated_blocks(case):
     _check_every_start(case[0], "SIGNALS")
     _check_every_start(case[0], "SPECTRUM_FAST")
+
+
+class _ForgetfulDict(dict):
+    """Keeps nothing: every SIGNALS / SPECTRUM_FAST callback has to split its token again."""
+
+    def __setitem__(self, key, value):
+        pass
+
+
+def test_callbacks_read_the_same_without_the_readers_entries(monkeypatch):
+    """The callbacks' own splitting (used when a lark version cannot take the readers, or a
+    token was lexed elsewhere) gives exactly what the readers' kept entries give."""
+    texts = [e.text for e in ENTRIES] + [damage(e.text, e.id).text for e in ENTRIES]
+    document = "\n\n".join(texts)
+    assert len(document) >= 20_000  # long enough for the fast grammar by default
+    with_readers = parse(document, fast=True)
+    builder, _ = _builder_and_parser(True)
+    monkeypatch.setattr(builder, "read_ahead", _ForgetfulDict())
+    without = parse(document, fast=True)
+    assert without == with_readers
+    assert len(with_readers.blocks) > 300
