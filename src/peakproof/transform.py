@@ -200,7 +200,8 @@ class BlockBuilder(Transformer):
         super().__init__(visit_tokens=False)
         self.ctx: Context | None = None
         self.fast: FastPatterns | None = None
-        # SIGNALS tokens read while lexing: (start, end) -> (text, entries); see read_signals
+        # Tokens read while lexing, for their callbacks: (start, end) -> (text, entries) for SIGNALS,
+        # (text, (header end, entries)) for SPECTRUM_FAST; see read_signals and read_spectrum
         self.read_ahead: dict[tuple[int, int], tuple[str, list]] = {}
 
     # ---- signals -------------------------------------------------------------------------
