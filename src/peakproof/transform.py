@@ -164,7 +164,18 @@ class FastPatterns:
             f",\\s?(?P<c>{pattern_of('COUNT')})(?P<close>\\))"
         )
         self.common = re.compile(details)  # the commonest details, on their own
-        self.direct = re.compile(f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?" + details)
+        # The commonest signal once more, with cheap stand-ins for MULT, JLABEL, the J values and
+        # COUNT that match only where the grammar's own terminal would match the very same text
+        # (letters before a non-word character; a bare "J" before white space or "="; a decimal J
+        # before "," or "Hz"; "2H" before ")"), so anything else takes the general path.
+        j_num = f"\\d{{1,3}}\\.\\d{{1,2}}(?=,\\s?\\d|\\s?{hz})"
+        cheap_details = (
+            f"\\s?(?P<open>\\(){_SIGNAL_OPEN_GUARDS}(?P<m>br ?s|[dtqph]{{1,4}}|s|m)(?![\\w\\-])"
+            f"(?:,\\s?(?P<jl>J)(?=\\s|{pattern_of('J_EQ')})\\s?(?:(?:{pattern_of('J_EQ')})\\s?)?(?P<j1>{j_num})"
+            f"(?:,\\s?(?P<j2>{j_num}))?(?:,\\s?(?P<j3>{j_num}))?(?:\\s?{hz})?)?"
+            f",\\s?(?P<c>\\d{{1,3}}H)(?P<close>\\))"
+        )
+        self.direct = re.compile(f"(?P<s>{num})(?:\\s?[\u2013\\-]\\s?(?P<s2>{num}))?" + cheap_details)
         try:
             whole = pattern_of("SIGNALS")
         except KeyError:  # the grammar without its fast path (used by tests)
