@@ -193,7 +193,10 @@ class FastPatterns:
             # One step of a SIGNALS token: a shift of a plain list (group "b"), tried first as the
             # lexer's alternation does, or the commonest detailed signal with its separator.
             # (NUMBER is atomic, so its match is the same in either branch: read it once.)
-            self.step = re.compile(f"(?P<s>{num})(?:(?P<b>{_BARE_REST}|{_LAST_REST})"
+            # First a cheap stand-in for the commonest plain shift ("123.6, " before a digit: the
+            # very text NUMBER and _BARE_REST would take there).
+            self.step = re.compile(f"(?P<q>\\d{{1,3}}\\.\\d{{1,2}}), (?=\\d)"
+                                   f"|(?P<s>{num})(?:(?P<b>{_BARE_REST}|{_LAST_REST})"
                                    f"|{self.direct.pattern[len(f'(?P<s>{num})'):]}{_SIGNAL_TAIL})")
         self.shift_head = re.compile(
             f"\\s*({pattern_of('NUMBER')})(?:\\s?[\u2013\\-]\\s?({pattern_of('NUMBER')}))?"
@@ -383,10 +386,13 @@ class BlockBuilder(Transformer):
         while pos < limit and len(out) < 9999:  # SIGNALS repeats its group at most 9999 times
             d = step.match(string, pos, end)
             if d is not None:
-                if d.start("b") >= 0:  # a shift of a plain list: the alternatives are disjoint
-                    # left as an entry: a following "(2 × d, 1H each)" may claim it
-                    value = d.group("s")
-                    append(((number(value), None, value, pos, d.end("s")), None))
+                value = d.group("q")
+                if value is not None or d.start("b") >= 0:  # a shift of a plain list
+                    # (the alternatives are disjoint); left as an entry: a following
+                    # "(2 × d, 1H each)" may claim it
+                    if value is None:
+                        value = d.group("s")
+                    append(((number(value), None, value, pos, pos + len(value)), None))
                     pos = d.end()
                     continue
                 signal = self._direct_signal(d)

@@ -20,6 +20,13 @@ class _Tables(NamedTuple):
     lone: list  # (shift, compound, group) of single-group singlet impurities, by shift
     lone_shifts: list[float]
     several: list  # (compound, groups) of impurities with two or more groups, in table order
+    # every tabulated shift the per-signal pass compares with (peaks, water, lone singlets), sorted:
+    # a signal with none of them nearby is passed over with two bisections
+    candidate_shifts: list[float]
+    # (first group's shift, position in ``several``) by shift: the several-group pass tries only
+    # the impurities whose first group has a listed signal nearby
+    first_groups: list
+    first_group_shifts: list[float]
 
 
 @functools.cache
@@ -39,7 +46,17 @@ def _tables(solvent: str, nucleus: str) -> _Tables | None:
     lone = sorted(((groups[0].shift, compound, groups[0]) for compound, groups in by_compound.items()
                    if len(groups) == 1 and groups[0].multiplicity == "s"), key=lambda t: t[0])
     several = [(compound, groups) for compound, groups in by_compound.items() if len(groups) >= 2]
-    return _Tables((*residual, *refs), water, lone, [t[0] for t in lone], several)
+    peaks = (*residual, *refs)
+    candidates = sorted([p.shift for p in peaks] + ([water.shift] if water is not None else [])
+                        + [t[0] for t in lone])
+    first_groups = sorted(((groups[0].shift, n) for n, (_, groups) in enumerate(several)))
+    return _Tables(peaks, water, lone, [t[0] for t in lone], several, candidates, first_groups,
+                   [t[0] for t in first_groups])
+
+
+# The bisection windows are this much wider than the exact tests they stand for, so rounding in
+# ``shift ± window`` can only let a few extra candidates through to the exact tests, never drop one.
+_SLACK = 1e-6
 
 
 def _compatible(reported, tabulated: str | None) -> bool:
@@ -96,6 +113,8 @@ class SolventCoincidence(Rule):
             tol = ctx.config.solvent_tolerance_1h if proton else ctx.config.solvent_tolerance_13c
             near, water_near = tol + 1e-9, max(tol, 0.05) + 1e-9
             water, lone, lone_shifts = tables.water, tables.lone, tables.lone_shifts
+            candidates = tables.candidate_shifts
+            reach = max(near, water_near if water is not None else 0.0, 0.01 + 1e-9 if proton else 0.0) + _SLACK
             flagged: set[int] = set()
             single = []  # (shift, index) of the signals with one shift, for the several-group pass
             for k, s in enumerate(spectrum.signals):
@@ -103,6 +122,8 @@ class SolventCoincidence(Rule):
                     continue
                 shift = s.shift
                 single.append((shift, k))
+                if bisect_left(candidates, shift - reach) == bisect_right(candidates, shift + reach):
+                    continue  # no tabulated shift within any window of the tests below
                 hit = None
                 for peak in tables.peaks:
                     if abs(shift - peak.shift) <= near and _compatible(s.multiplicity, peak.multiplicity):
@@ -134,7 +155,15 @@ class SolventCoincidence(Rule):
             single.sort()
             shifts = [x for x, _ in single]
             signals = spectrum.signals
-            for compound, groups in tables.several:
+            several, first_groups, first_shifts = tables.several, tables.first_groups, tables.first_group_shifts
+            reach = tol + 1e-9 + _SLACK
+            tried: set[int] = set()
+            for x in shifts:
+                lo = bisect_left(first_shifts, x - reach)
+                hi = bisect_right(first_shifts, x + reach, lo)
+                tried.update(first_groups[i][1] for i in range(lo, hi))
+            for n in sorted(tried):  # table order, as the findings were always made
+                compound, groups = several[n]
                 matched = []
                 for g in groups:
                     lo = bisect_left(shifts, g.shift - tol - 1e-9)
