@@ -8,7 +8,6 @@ first-order criterion.  The data are plain so a simulator can turn them into a s
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
 from typing import Any, NamedTuple
 
 from .records import compared_by_class
@@ -62,15 +61,56 @@ class Edge(NamedTuple):
         }
 
 
-@dataclass(frozen=True, slots=True)
 class CouplingNetwork:
-    nucleus: str
-    frequency_mhz: float | None
-    tolerance_hz: float
-    nodes: tuple[Node, ...]
-    edges: tuple[Edge, ...]
-    # (node, coupling or None) → its (other node, edge) pairs in edge order; made on first use
-    _by_end: dict | None = field(default=None, init=False, repr=False, compare=False)
+    """Nodes and edges of one spectrum (immutable; compared, hashed and shown by its five fields).
+
+    ``nodes`` may be None with ``spectrum`` given instead: the rules read only the edges, so the
+    node records are made from the spectrum on first use (the JSON report reads them).
+    """
+
+    __slots__ = ("nucleus", "frequency_mhz", "tolerance_hz", "_nodes", "edges", "_by_end", "_spectrum")
+
+    def __init__(self, nucleus: str, frequency_mhz: float | None, tolerance_hz: float,
+                 nodes: tuple[Node, ...] | None, edges: tuple[Edge, ...], *, spectrum=None,
+                 _by_end: dict | None = None):
+        setattr_ = object.__setattr__
+        setattr_(self, "nucleus", nucleus)
+        setattr_(self, "frequency_mhz", frequency_mhz)
+        setattr_(self, "tolerance_hz", tolerance_hz)
+        setattr_(self, "_nodes", nodes)
+        setattr_(self, "_spectrum", spectrum)  # where ``nodes`` come from while they are None
+        setattr_(self, "edges", edges)
+        # (node, coupling or None) → its (other node, edge) pairs in edge order
+        setattr_(self, "_by_end", _by_end)
+
+    @property
+    def nodes(self) -> tuple[Node, ...]:
+        nodes = self._nodes
+        if nodes is None:
+            nodes = _nodes_of(self._spectrum)
+            object.__setattr__(self, "_nodes", nodes)
+            object.__setattr__(self, "_spectrum", None)
+        return nodes
+
+    def __setattr__(self, name, value):
+        raise AttributeError(f"CouplingNetwork is immutable (cannot set {name!r})")
+
+    __delattr__ = __setattr__
+
+    def _fields(self) -> tuple:
+        return (self.nucleus, self.frequency_mhz, self.tolerance_hz, self.nodes, self.edges)
+
+    def __eq__(self, other: object) -> bool:
+        if other.__class__ is not self.__class__:
+            return NotImplemented
+        return self._fields() == other._fields()
+
+    def __hash__(self) -> int:
+        return hash(self._fields())
+
+    def __repr__(self) -> str:
+        return (f"CouplingNetwork(nucleus={self.nucleus!r}, frequency_mhz={self.frequency_mhz!r}, "
+                f"tolerance_hz={self.tolerance_hz!r}, nodes={self.nodes!r}, edges={self.edges!r})")
 
     def partners(self, index: int, coupling: int | None = None) -> list[tuple[int, Edge]]:
         """(other node, edge) pairs of node ``index``, optionally only through one coupling."""
@@ -85,10 +125,7 @@ class CouplingNetwork:
         if by_end is None:
             by_end = {}
             for e in self.edges:
-                for key in ((e.i, e.i_coupling), (e.i, None)):
-                    by_end.setdefault(key, []).append((e.j, e))
-                for key in ((e.j, e.j_coupling), (e.j, None)):
-                    by_end.setdefault(key, []).append((e.i, e))
+                _add_ends(by_end, e)
             object.__setattr__(self, "_by_end", by_end)
         return by_end
 
@@ -102,6 +139,13 @@ class CouplingNetwork:
         }
 
 
+def _add_ends(by_end: dict, e: Edge) -> None:
+    for key in ((e.i, e.i_coupling), (e.i, None)):
+        by_end.setdefault(key, []).append((e.j, e))
+    for key in ((e.j, e.j_coupling), (e.j, None)):
+        by_end.setdefault(key, []).append((e.i, e))
+
+
 def homonuclear(coupling, element: str) -> bool:
     """Whether a coupling can join two signals of the same spectrum (unlabelled counts as yes)."""
     nuclei = coupling.nuclei
@@ -110,25 +154,40 @@ def homonuclear(coupling, element: str) -> bool:
     return all(n.lstrip("0123456789") == element for n in nuclei)
 
 
-def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> CouplingNetwork:
-    """The coupling network of ``spectrum`` with J values matched within ``tolerance`` Hz."""
+def _nodes_of(spectrum) -> tuple[Node, ...]:
+    """One node per signal of ``spectrum``: its shift (or position), count, letters, H–H J values."""
     element = spectrum.element
-    mhz = spectrum.frequency_mhz
     nodes = []
-    coupled = []  # (node, shift, its usable (coupling, J) pairs, lowest J, highest J)
     new = tuple.__new__  # a record's fields in order, without the keyword-handling constructor
     for k, s in enumerate(spectrum.signals):
         m = s.multiplicity
         shift = s.shift if s.shift is not None else s.position
-        if s.couplings:
-            pairs = [(ci, c.value) for ci, c in enumerate(s.couplings) if not c.nuclei or homonuclear(c, element)]
-            nodes.append(new(Node, (k, shift, s.count, m.name if m else None, tuple([v for _, v in pairs]))))
-            if pairs:
-                values = [v for _, v in pairs]
-                coupled.append((k, shift, pairs, min(values), max(values)))
+        j_hz = tuple([c.value for c in s.couplings if not c.nuclei or homonuclear(c, element)])
+        nodes.append(new(Node, (k, shift, s.count, m.name if m else None, j_hz)))
+    return tuple(nodes)
+
+
+def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> CouplingNetwork:
+    """The coupling network of ``spectrum`` with J values matched within ``tolerance`` Hz."""
+    element = spectrum.element
+    mhz = spectrum.frequency_mhz
+    coupled = []  # (node, shift, its usable (coupling, J) pairs, lowest J, highest J)
+    for k, s in enumerate(spectrum.signals):
+        couplings = s.couplings
+        if not couplings:
+            continue
+        pairs = [(ci, c.value) for ci, c in enumerate(couplings) if not c.nuclei or homonuclear(c, element)]
+        if not pairs:
+            continue
+        if len(pairs) == 1:
+            low = high = pairs[0][1]
         else:
-            nodes.append(new(Node, (k, shift, s.count, m.name if m else None, ())))
+            values = [v for _, v in pairs]
+            low, high = min(values), max(values)
+        coupled.append((k, s.shift if s.shift is not None else s.position, pairs, low, high))
     edges = []
+    by_end: dict = {}
+    new = tuple.__new__  # a record's fields in order, without the keyword-handling constructor
     limit = tolerance + 1e-9
     for x, (a, shift_a, pairs_a, low_a, high_a) in enumerate(coupled):
         for b, shift_b, pairs_b, low_b, high_b in coupled[x + 1:]:
@@ -144,8 +203,15 @@ def build_network(spectrum, tolerance: float = DEFAULT_TOLERANCE_HZ) -> Coupling
                     continue
                 _, cj, vb = best
                 delta = abs(shift_a - shift_b) * mhz if mhz else None
-                edges.append(new(Edge, (a, b, (va + vb) / 2, delta, ci, cj)))
-    return CouplingNetwork(spectrum.nucleus, mhz, tolerance, tuple(nodes), tuple(edges))
+                edge = new(Edge, (a, b, (va + vb) / 2, delta, ci, cj))
+                edges.append(edge)
+                for key, other in (((a, ci), b), ((a, None), b), ((b, cj), a), ((b, None), a)):
+                    held = by_end.get(key)
+                    if held is None:
+                        by_end[key] = [(other, edge)]
+                    else:
+                        held.append((other, edge))
+    return CouplingNetwork(spectrum.nucleus, mhz, tolerance, None, tuple(edges), spectrum=spectrum, _by_end=by_end)
 
 
 __all__ = ["CouplingNetwork", "DEFAULT_TOLERANCE_HZ", "Edge", "Node", "build_network", "homonuclear"]

@@ -23,10 +23,6 @@ class _Tables(NamedTuple):
     # every tabulated shift the per-signal pass compares with (peaks, water, lone singlets), sorted:
     # a signal with none of them nearby is passed over with two bisections
     candidate_shifts: list[float]
-    # (first group's shift, position in ``several``) by shift: the several-group pass tries only
-    # the impurities whose first group has a listed signal nearby
-    first_groups: list
-    first_group_shifts: list[float]
 
 
 @functools.cache
@@ -49,9 +45,7 @@ def _tables(solvent: str, nucleus: str) -> _Tables | None:
     peaks = (*residual, *refs)
     candidates = sorted([p.shift for p in peaks] + ([water.shift] if water is not None else [])
                         + [t[0] for t in lone])
-    first_groups = sorted(((groups[0].shift, n) for n, (_, groups) in enumerate(several)))
-    return _Tables(peaks, water, lone, [t[0] for t in lone], several, candidates, first_groups,
-                   [t[0] for t in first_groups])
+    return _Tables(peaks, water, lone, [t[0] for t in lone], several, candidates)
 
 
 # The bisection windows are this much wider than the exact tests they stand for, so rounding in
@@ -155,15 +149,7 @@ class SolventCoincidence(Rule):
             single.sort()
             shifts = [x for x, _ in single]
             signals = spectrum.signals
-            several, first_groups, first_shifts = tables.several, tables.first_groups, tables.first_group_shifts
-            reach = tol + 1e-9 + _SLACK
-            tried: set[int] = set()
-            for x in shifts:
-                lo = bisect_left(first_shifts, x - reach)
-                hi = bisect_right(first_shifts, x + reach, lo)
-                tried.update(first_groups[i][1] for i in range(lo, hi))
-            for n in sorted(tried):  # table order, as the findings were always made
-                compound, groups = several[n]
+            for compound, groups in tables.several:
                 matched = []
                 for g in groups:
                     lo = bisect_left(shifts, g.shift - tol - 1e-9)
