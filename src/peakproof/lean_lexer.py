@@ -53,17 +53,36 @@ class TerminalScanner:
         return None
 
 
-def install(lark_parser) -> bool:
-    """Make every per-state lexer of ``lark_parser`` use :class:`TerminalScanner`.
-
-    Returns False (and changes nothing) when this lark version is laid out differently."""
+def _fresh_lexers(lark_parser):
+    """Every per-state lexer of ``lark_parser``'s contextual lexer, or None when this lark version
+    is laid out differently or a scanner was built already (then nothing should be replaced)."""
     try:
-        from lark.lexer import BasicLexer, _create_unless
+        from lark.lexer import BasicLexer
 
         contextual = lark_parser.parser.lexer
         lexers = list(contextual.lexers.values()) + [contextual.root_lexer]
     except (AttributeError, ImportError):
+        return None
+    for lexer in lexers:
+        if not isinstance(lexer, BasicLexer) or getattr(lexer, "_scanner", None) is not None:
+            return None
+    return lexers
+
+
+def _replace_scanner_builder(lexers, build) -> bool:
+    for lexer in lexers:
+        lexer._build_scanner = build.__get__(lexer)
+    return True
+
+
+def install(lark_parser) -> bool:
+    """Make every per-state lexer of ``lark_parser`` use :class:`TerminalScanner`.
+
+    Returns False (and changes nothing) when this lark version is laid out differently."""
+    lexers = _fresh_lexers(lark_parser)
+    if lexers is None:
         return False
+    from lark.lexer import BasicLexer, _create_unless
 
     def build(self):
         terminals, self.callback = _create_unless(self.terminals, self.g_regex_flags, self.re,
@@ -72,12 +91,7 @@ def install(lark_parser) -> bool:
             return BasicLexer._build_scanner(self)
         return TerminalScanner(terminals, self.g_regex_flags, self.re, self.use_bytes)
 
-    for lexer in lexers:
-        if not isinstance(lexer, BasicLexer) or getattr(lexer, "_scanner", None) is not None:
-            return False
-    for lexer in lexers:
-        lexer._build_scanner = build.__get__(lexer)
-    return True
+    return _replace_scanner_builder(lexers, build)
 
 
 class ReaderFirstScanner:
@@ -97,6 +111,7 @@ class ReaderFirstScanner:
         rest = terminals[len(readers):]
         self._rest = Scanner(rest, g_regex_flags, re_, use_bytes) if rest else None
         self._whole = (terminals, g_regex_flags, re_, use_bytes)
+        self._whole_scanner = None  # lark's own, for fullmatch (rarely asked): built on first use
 
     def match(self, text, pos):
         string, end = text.text, text.end
@@ -107,9 +122,11 @@ class ReaderFirstScanner:
         return self._rest.match(text, pos) if self._rest is not None else None
 
     def fullmatch(self, text: str):
-        from lark.lexer import Scanner
+        if self._whole_scanner is None:
+            from lark.lexer import Scanner
 
-        return Scanner(*self._whole).fullmatch(text)
+            self._whole_scanner = Scanner(*self._whole)
+        return self._whole_scanner.fullmatch(text)
 
 
 def install_reader(lark_parser, readers: dict) -> bool:
@@ -118,18 +135,11 @@ def install_reader(lark_parser, readers: dict) -> bool:
     the highest-priority terminals).
 
     Returns False (and changes nothing) when this lark version is laid out differently."""
-    try:
-        from lark.lexer import BasicLexer, _create_unless
-
-        contextual = lark_parser.parser.lexer
-        lexers = list(contextual.lexers.values()) + [contextual.root_lexer]
-    except (AttributeError, ImportError):
+    lexers = _fresh_lexers(lark_parser)
+    if lexers is None or any(lexer.user_callbacks for lexer in lexers):  # none in our grammars
         return False
-    for lexer in lexers:
-        if not isinstance(lexer, BasicLexer) or getattr(lexer, "_scanner", None) is not None:
-            return False
-        if lexer.user_callbacks:  # not used by peakproof's grammars
-            return False
+    from lark.lexer import BasicLexer, _create_unless
+
     original = BasicLexer._build_scanner
 
     def build(self):
@@ -144,6 +154,4 @@ def install_reader(lark_parser, readers: dict) -> bool:
             return original(self)
         return ReaderFirstScanner(leading, terminals, self.g_regex_flags, self.re, self.use_bytes)
 
-    for lexer in lexers:
-        lexer._build_scanner = build.__get__(lexer)
-    return True
+    return _replace_scanner_builder(lexers, build)
