@@ -96,3 +96,29 @@ def test_rules_and_explain(capsys):
     assert text.startswith("second-order-ab (PP221)") and "fail:" in text and "Source:" in text
     assert main(["explain", "multiplicity-jcount"]) == 2
     assert "did you mean multiplicity-j-count" in capsys.readouterr().err
+
+
+def test_prose_without_data_says_so(tmp_path, capsys):
+    path = write(tmp_path, "The flask was cooled to 0 °C and stirred overnight.\n")
+    assert main(["check", path]) == 0
+    out = capsys.readouterr().out
+    assert f"{path}: no characterization data found" in out.splitlines()
+
+
+def test_json_findings_name_their_own_compound(tmp_path, capsys):
+    """Each finding carries the compound of the block it lies in (found by bisection over the
+    blocks), not a neighbour's; a finding between blocks has none."""
+    text = ("Compound 3a. " + CLEAN + "\nCompound 3b. " + BAD + "\nCompound 3c. " + CLEAN
+            + "\nCompound 3d. " + BAD)
+    assert main(["check", write(tmp_path, text), "--format", "json"]) == 1
+    findings = json.loads(capsys.readouterr().out)["documents"][0]["findings"]
+    assert findings and {f["compound"] for f in findings} == {"3b", "3d"}
+
+
+def test_api_check_accepts_text():
+    import peakproof
+
+    from_text = peakproof.check(BAD).diagnostics
+    from_doc = peakproof.check(peakproof.parse(BAD)).diagnostics
+    assert [d.rule for d in from_text] == [d.rule for d in from_doc]
+    assert "multiplicity-j-count" in {d.rule for d in from_text}

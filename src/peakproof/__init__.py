@@ -25,7 +25,8 @@ def parse_file(path, *, fmt: str | None = None):
 
 
 def check(document, *, config=None, formula: str | None = None):
-    """Check a parsed document; returns findings (``.diagnostics``) and coupling networks."""
+    """Check a parsed document, or text (parsed first); returns findings (``.diagnostics``) and
+    coupling networks."""
     from .api import check as _check
 
     return _check(document, config=config, formula=formula)

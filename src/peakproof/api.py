@@ -67,10 +67,15 @@ def parse_path(path, *, fmt: str | None = None) -> tuple[Source, Document]:
     return source, parse_source(source)
 
 
-def check(document: Document, *, config=None, formula: str | None = None):
-    """Findings and coupling networks for a parsed document (``checker.CheckResult``)."""
+def check(document: Document | str, *, config=None, formula: str | None = None):
+    """Findings and coupling networks (``checker.CheckResult``) for a parsed document, or for
+    text, which is parsed first (its syntax diagnostics are among the findings)."""
     from .checker import check_document
 
+    if isinstance(document, str):
+        from .parsing import parse
+
+        document = parse(document)
     return check_document(document, config, formula)
 
 

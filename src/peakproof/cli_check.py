@@ -173,10 +173,28 @@ def _batch_check(args, config) -> int:
     return EXIT_USAGE if summary.unreadable_count else worst["status"]
 
 
-def _finding_json(d, source, doc) -> dict:
+def _block_finder(doc):
+    """``find(offset)``: the block whose span holds ``offset``, or None, by bisection over the
+    blocks' starts (blocks are in document order and do not overlap), so a report is linear in
+    its findings rather than findings × blocks."""
+    import bisect
+
+    blocks = doc.blocks
+    starts = [b.span.start for b in blocks]
+
+    def find(offset):
+        i = bisect.bisect_right(starts, offset) - 1
+        if i >= 0 and offset <= blocks[i].span.end:
+            return blocks[i]
+        return None
+
+    return find
+
+
+def _finding_json(d, source, find_block) -> dict:
     """A finding in the published shape, plus its compound and, for Word and PDF, its place there."""
     out = d.to_json()
-    block = next((b for b in doc.blocks if b.span.start <= d.span.start <= b.span.end), None)
+    block = find_block(d.span.start)
     out["compound"] = block.compound if block is not None else None
     if source.format in ("docx", "pdf"):
         where = source.locate(d.span.start)
@@ -227,10 +245,13 @@ def _check(args) -> int:
             if at_or_above(d.severity, config.fail_on) and status == EXIT_OK:
                 status = EXIT_FINDINGS
         if args.format == "json":
+            find_block = _block_finder(doc)
             documents.append({"path": source.name,
-                              "findings": [_finding_json(d, source, doc) for d in result.diagnostics],
+                              "findings": [_finding_json(d, source, find_block) for d in result.diagnostics],
                               "networks": result.networks})
         elif args.format == "text":
+            if not doc.blocks and not result.diagnostics:
+                print(f"{source.name}: no characterization data found")
             for line in finding_lines(source, result.diagnostics, show_source=not args.quiet, document=doc):
                 print(line)
     if args.format == "json":
