@@ -57,3 +57,23 @@ def test_bad_plot_options_exit_2(tmp_path, capsys, extra):
 def test_other_extension_is_refused(tmp_path, capsys):
     assert main(["plot", str(DEMO), "-o", str(tmp_path / "x.jpg")]) == 2
     assert ".png or .svg" in capsys.readouterr().err
+
+
+def test_many_compounds_refused_at_once_with_a_way_out(tmp_path, capsys, monkeypatch):
+    """70 compounds × 900 px exceed the 60,000-pixel height: refused before any simulation,
+    naming --compound; nothing is simulated and no file is written."""
+    block = "Compound {n}. 1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), 6.90 (d, J = 8.4 Hz, 2H).\n"
+    path = tmp_path / "many.txt"
+    path.write_text("".join(block.format(n=f"{i}a") for i in range(1, 71)), "utf-8")
+
+    import peakproof.simulate.from_model as from_model
+
+    def no_simulation(*a, **k):
+        raise AssertionError("simulated before refusing")
+
+    monkeypatch.setattr(from_model, "simulate_implied", no_simulation)
+    out = tmp_path / "many.png"
+    assert main(["plot", str(path), "-o", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert "70 1H spectra" in err and "--compound 1a" in err and "at most 66" in err
+    assert not out.exists()

@@ -209,12 +209,33 @@ def _parse_inset(text: str | None) -> tuple[float, float] | None:
     return (min(low, high), max(low, high))
 
 
+def _refuse_oversized_picture(args, blocks) -> None:
+    """Refuse, before any simulation, a picture too large to draw (many compounds at the default
+    900 px each), pointing to ``--compound``."""
+    from .plot import HEIGHT_RANGE_PX, PANEL_HEIGHT_PX, size_problem
+
+    panels = sum(1 for b in blocks for s in b.spectra if s.nucleus == "1H" and s.signals)
+    height = args.height or PANEL_HEIGHT_PX * panels
+    problem = size_problem(args.width, height)
+    if problem is None:
+        return
+    if args.height is None and panels > 1:
+        labels = [b.compound for b in blocks if b.compound][:3]
+        example = f" (e.g. --compound {labels[0]})" if labels else " (e.g. --compound 1)"
+        most = HEIGHT_RANGE_PX[1] // PANEL_HEIGHT_PX
+        raise _Refusal(f"{panels} 1H spectra would make a picture {height} pixels high, more than "
+                       f"the {HEIGHT_RANGE_PX[1]} allowed; choose one compound with --compound{example}, "
+                       f"or plot at most {most} at a time")
+    raise _Refusal(problem)
+
+
 def _run_plot(args, blocks) -> int:
     from .plot import PlotError, plot_spectra
 
     inset = _parse_inset(args.inset)
     if not str(args.output).lower().endswith((".png", ".svg")):
         raise _Refusal(f"{args.output}: the picture must be a .png or .svg file")
+    _refuse_oversized_picture(args, blocks)
     exact = simulated_spectra(blocks, field=args.field, nuclei=("1H",))
     first = simulated_spectra(blocks, field=args.field, nuclei=("1H",), first_order=True)
     panels = [(_name(block), q, f) for (block, q), (_, f) in zip(exact, first)]

@@ -23,6 +23,21 @@ VISIBLE_DIFFERENCE = 0.03
 _BASELINE, _PEAK_TOP, _LEADER_KNEE, _LEADER_END = -0.16, 1.0, 1.07, 1.15
 
 
+#: The picture's size range in pixels, and the height each spectrum is given by default.
+WIDTH_RANGE_PX = (200, 20000)
+HEIGHT_RANGE_PX = (150, 60000)
+PANEL_HEIGHT_PX = 900
+
+
+def size_problem(width_px: int, height_px: int) -> str | None:
+    """Why a picture of this size cannot be drawn, or None when it can."""
+    (w0, w1), (h0, h1) = WIDTH_RANGE_PX, HEIGHT_RANGE_PX
+    if w0 <= width_px <= w1 and h0 <= height_px <= h1:
+        return None
+    return (f"a picture of {width_px} × {height_px} pixels is out of range "
+            f"(width {w0}–{w1}, height {h0}–{h1})")
+
+
 class PlotError(ValueError):
     """A picture that cannot be drawn as asked (the message says why)."""
 
@@ -36,9 +51,9 @@ def plot_spectra(panels, path, *, width_px: int = 1800, height_px: int = 900,
 
     if not panels:
         raise PlotError("nothing to draw: no 1H spectra with signals")
-    if not (200 <= width_px <= 20000 and 150 <= height_px <= 60000):
-        raise PlotError(f"a picture of {width_px} × {height_px} pixels is out of range "
-                        "(width 200–20000, height 150–60000)")
+    problem = size_problem(width_px, height_px)
+    if problem:
+        raise PlotError(problem)
     fig = Figure(figsize=(width_px / DPI, height_px / DPI), dpi=DPI)
     FigureCanvasAgg(fig)
     fig.patch.set_facecolor("white")
