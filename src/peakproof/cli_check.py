@@ -25,6 +25,9 @@ def add_arguments(name, parser) -> None:
     parser.add_argument("--ignore", action="append", default=None, metavar="RULES",
                         help="skip these rules (names, codes or families, comma-separated)")
     parser.add_argument("--formula", default=None, help="the compound's molecular formula, e.g. C12H14O3")
+    parser.add_argument("--style", default=None, metavar="NAME",
+                        help="the style the text is written in (see 'peakproof styles'); form rules "
+                             "such as shift order and units follow it")
     parser.add_argument("--config", default=None, metavar="FILE",
                         help="settings file (default: [tool.peakproof] of the nearest pyproject.toml)")
     parser.add_argument("--coupling-tolerance", type=float, default=None, metavar="HZ",
@@ -102,6 +105,15 @@ def _settings(args, first_file: str):
         "ea_tolerance": args.ea_tolerance,
         "formula": args.formula,
     }
+    if args.style is not None:
+        from .styles import StyleError, find_project_style, get_style
+
+        try:
+            project = find_project_style(near)
+            user = {project.name: project} if project is not None else None
+            overrides["style"] = get_style(args.style, user)
+        except StyleError as exc:
+            raise ConfigError(f"--style: {exc}") from None
     if args.select:
         overrides["select"] = _split(args.select)
     if args.ignore:

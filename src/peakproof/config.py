@@ -50,6 +50,7 @@ class Config:
     frequency_tolerance: float = 1.0  # MHz, or 1 % of the expected value when larger
     carbon_deficit: float = 0.25  # fraction of the formula's carbons missing before a note
     formula: str | None = None
+    style: Any = None  # the Style class the text is written in (form rules follow it), or None
     path: str | None = None  # the file the settings came from
     problems: tuple[str, ...] = ()  # unknown keys and similar, for the user
 
@@ -150,11 +151,28 @@ def _convert(name: str, value: Any, where: str, key: str) -> Any:
         if value not in _CHOICES[name]:
             raise bad(" or ".join(_CHOICES[name]))
         return value
+    if name == "style":
+        return _style_setting(value, where, bad)
     if name == "formula":
         if not isinstance(value, str):
             raise bad("a molecular formula such as 'C12H14O3'")
         return value
     return value  # pragma: no cover - every field is handled above
+
+
+def _style_setting(value: Any, where: str, bad) -> Any:
+    """``style = "count-first"`` names a built-in style; a ``[tool.peakproof.style]`` table is a
+    user style (``extends`` a built-in), the one ``format`` writes in."""
+    from .styles import StyleError, get_style, style_from_table
+
+    try:
+        if isinstance(value, str):
+            return get_style(value)
+        if isinstance(value, dict):
+            return style_from_table(value, where)
+    except StyleError as exc:
+        raise ConfigError(f"{where}: [tool.peakproof] style: {exc}") from None
+    raise bad("a built-in style's name or a [tool.peakproof.style] table")
 
 
 def _check_rule_names(config: Config, where: str) -> list[str]:

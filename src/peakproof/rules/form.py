@@ -38,20 +38,25 @@ class ShiftOrder(Rule):
     )
 
     def check(self, block, ctx):
-        either = ctx.config.shift_order == "either"
+        style = ctx.config.style
+        order = style.shift_order if style is not None else "descending"
+        if order == "as-written":
+            return
+        either = style is None and ctx.config.shift_order == "either"
+        sign = -1.0 if order == "ascending" else 1.0  # compare as if descending
         for spectrum in block.spectra:
             signals = _shifted(spectrum)
             if len(signals) < 2:
                 continue
-            pos = [s.position for s in signals]
+            pos = [sign * s.position for s in signals]
             if either and all(a <= b for a, b in zip(pos, pos[1:])):
                 continue  # ascending
             for x in range(1, len(pos)):
                 if pos[x] > pos[x - 1] + 1e-9:
                     a, b = signals[x - 1], signals[x]
                     yield self.finding(b.shift_span or b.span, here=b.shift_text, before=a.shift_text,
-                                       order="descending",
-                                       data={"shift": pos[x], "previous": pos[x - 1]})
+                                       order=order,
+                                       data={"shift": sign * pos[x], "previous": sign * pos[x - 1]})
                     break
 
 
@@ -217,6 +222,9 @@ class MissingHz(Rule):
     )
 
     def check(self, block, ctx):
+        style = ctx.config.style
+        if style is not None and not style.j.get("unit", "Hz"):
+            return  # the configured style declares the unit once, outside the lists
         text = ctx.document.text
         for spectrum in block.spectra:
             if _UNIT_IN_HEADER.search(spectrum.header_text):
