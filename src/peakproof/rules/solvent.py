@@ -70,6 +70,23 @@ def _looks_like_own_group(signal) -> bool:
     return signal.count is not None and signal.count >= 3 and abs(signal.count - round(signal.count)) < 1e-6
 
 
+def _several_protons(signal) -> bool:
+    """A whole-number integration of two or more protons: not a residual protio-solvent line
+    (CHCl3, C6D5H, CHD2…), whose integral is never reported as the compound's protons; a 4H
+    AA′BB′ singlet at 7.26 in CDCl3 is the compound's (common practice)."""
+    n = signal.count
+    return n is not None and n >= 2 and abs(n - round(n)) < 1e-6
+
+
+def _integration_names_impurity(signal, group) -> bool:
+    """A singlet whose integration equals the protons of a tabulated non-methyl group (benzene's
+    6H at 7.36 in CDCl3): the integration itself points to the impurity, even though a several-
+    proton singlet is otherwise taken for the compound's own group (common practice)."""
+    n = signal.count
+    return (n is not None and group.protons is not None and abs(n - group.protons) < 1e-6
+            and "CH3" not in group.group and not signal.assignment)
+
+
 def _single_shift(signal):
     return signal.shift is not None and signal.range is None
 
@@ -85,14 +102,19 @@ class SolventCoincidence(Rule):
         "Residual protio solvent, dissolved water and common laboratory solvents appear at "
         "tabulated shifts; a reported peak there is likely one of them. Impurities with several "
         "groups are reported only when all their groups are listed; single-group ones (acetone, "
-        "dichloromethane…) when a singlet falls within 0.01 ppm."
+        "dichloromethane…) when a singlet falls within 0.01 ppm. The integration is read both "
+        "ways: a singlet of two or more protons is not the residual solvent line (a 4H singlet at "
+        "7.26 in CDCl3), and a singlet with the protons of a tabulated non-methyl group (benzene's "
+        "6H at 7.36) is that impurity although several-proton singlets are otherwise the compound's."
     )
     source = "Gottlieb, Kotlyar, Nudelman, J. Org. Chem. 1997, 62, 7512; Fulmer et al., Organometallics 2010, 29, 2176"
     examples = (
         ("fail", "1H NMR (400 MHz, CDCl3) δ 3.81 (s, 3H), 1.56 (s, 2H)."),
         ("fail", "1H NMR (400 MHz, CDCl3) δ 5.30 (s, 2H), 3.81 (s, 3H)."),
         ("fail", "13C{1H} NMR (101 MHz, CDCl3) δ 171.1, 77.2, 55.3."),
+        ("fail", "1H NMR (400 MHz, CDCl3) δ 7.36 (s, 6H), 3.81 (s, 3H)."),
         ("pass", "1H NMR (400 MHz, CDCl3) δ 3.81 (s, 3H), 1.62 (s, 2H)."),
+        ("pass", "1H NMR (400 MHz, CDCl3) δ 7.26 (s, 4H), 2.35 (s, 6H)."),
         ("pass", "1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 1.26 (t, J = 7.1 Hz, 3H)."),
     )
 
@@ -119,7 +141,8 @@ class SolventCoincidence(Rule):
                 if bisect_left(candidates, shift - reach) == bisect_right(candidates, shift + reach):
                     continue  # no tabulated shift within any window of the tests below
                 hit = None
-                for peak in tables.peaks:
+                several_protons = proton and _several_protons(s)
+                for peak in () if several_protons else tables.peaks:
                     if abs(shift - peak.shift) <= near and _compatible(s.multiplicity, peak.multiplicity):
                         hit = ("the residual solvent signal", f"{peak.label} {fmt(peak.shift, 2)}", peak.shift)
                         break
@@ -132,13 +155,13 @@ class SolventCoincidence(Rule):
                     own_group = _looks_like_own_group(s) and not exchangeable
                     if not own_group and abs(shift - water.shift) <= window + 1e-9 and _compatible(s.multiplicity, "s"):
                         hit = ("dissolved water", f"{water.label} {fmt(water.shift, 2)}", water.shift)
-                if hit is None and proton and s.multiplicity is not None and \
-                        s.multiplicity.name == "s" and not _looks_like_own_group(s):
+                if hit is None and proton and s.multiplicity is not None and s.multiplicity.name == "s":
                     lo = bisect_left(lone_shifts, shift - 0.01 - 1e-9)
                     hi = bisect_right(lone_shifts, shift + 0.01 + 1e-9)
                     if lo < hi:  # the nearest tabulated singlet within 0.01 ppm
-                        tab, compound, _ = min(lone[lo:hi], key=lambda t: abs(t[0] - shift))
-                        hit = (compound, f"{compound} {fmt(tab, 2)}", tab)
+                        tab, compound, group = min(lone[lo:hi], key=lambda t: abs(t[0] - shift))
+                        if not _looks_like_own_group(s) or _integration_names_impurity(s, group):
+                            hit = (compound, f"{compound} {fmt(tab, 2)}", tab)
                 if hit is not None:
                     flagged.add(k)
                     yield self._hit(s, hit[0], hit[1], hit[2], spectrum.solvent_normalized)
