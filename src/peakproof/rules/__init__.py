@@ -24,6 +24,7 @@ FAMILIES = (
     "multiplicity",
     "coupling",
     "reciprocity",
+    "splitting",
     "second_order",
     "integration",
     "carbon",
