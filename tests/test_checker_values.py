@@ -59,10 +59,11 @@ def test_dichloromethane_singlet_is_an_impurity():
     assert found and "dichloromethane" in found[0].message.lower()
 
 
-# --- HRMS: AME2020 masses (Wang et al., Chin. Phys. C 2021, 45, 030003): 1H 1.00782503223,
-#     16O 15.99491461957, 23Na 22.9897692820, 12C 12 exactly; electron 5.48579909065e-4 u
-#     (CODATA 2018) -------------------------------------------------------------------------
-H, O, NA, E = 1.00782503223, 15.99491461957, 22.9897692820, 5.48579909065e-4
+# --- HRMS: AME2020 masses (Wang et al., Chin. Phys. C 2021, 45, 030003, table mass_1.mas20):
+#     1H 1.007825031898, 16O 15.99491461926, 23Na 22.98976928195, 12C 12 exactly; electron
+#     5.48579909065e-4 u (CODATA 2018). (The AME2016 values 1.00782503223, 15.99491461957 and
+#     22.9897692820 round to the same 4-decimal m/z.) -------------------------------------
+H, O, NA, E = 1.007825031898, 15.99491461926, 22.98976928195, 5.48579909065e-4
 
 
 def test_hrms_sodium_adduct_value_from_ame2020_and_codata():
