@@ -54,9 +54,11 @@ _WORD = {
     "quartets": "q",
 }
 _LETTERS_RE = re.compile(r"quint|quin|pent|sext|sept|hept|oct|non|d|t|q|p|h")
-_MULTIPLIER_RE = re.compile(r"^(\d)\s?[×x]\s?")
-_BROAD_RE = re.compile(r"^(?:br(?:oad)?\.?\s?|b(?=s$)|l(?=s$))")
-_APPARENT_RE = re.compile(r"^(?:app(?:arent|\.)?\s?|pseudo[\s\-]?)")
+# "2 × d", "2x d", and "2d" (two doublets) where a digit stands before a lone d or t
+_MULTIPLIER_RE = re.compile(r"^(\d)(?:\s?[×x]\s?|(?=[dt]$))")
+_BROAD_RE = re.compile(r"^(?:br(?:oad)?\.?\s?|b\s?(?=s$)|l(?=s$))")
+# "app t", "apparent t", "pseudo-t", "ψt", and "at" / "adt" (a letter a before the letters)
+_APPARENT_RE = re.compile(r"^(?:app(?:arent|\.)?\s?|pseudo[\s\-]?|ψ[\s\-]?|a(?=[dtq]{1,3}$))")
 
 
 @lru_cache(maxsize=512)
