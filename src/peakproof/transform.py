@@ -36,6 +36,10 @@ from .vocabulary import (
 )
 
 
+class GrammarDrift(RuntimeError):
+    """A pattern written out in this module for speed no longer matches the grammar's own."""
+
+
 class Context:
     """Where the text being parsed sits in the document."""
 
@@ -182,14 +186,16 @@ class FastPatterns:
             self.one_signal = None
         else:
             # SIGNALS is "(?:ONE){1,9999}": one signal is the repeated group itself
-            assert whole.startswith("(?:") and whole.endswith("){1,9999}"), whole[-20:]
+            if not (whole.startswith("(?:") and whole.endswith("){1,9999}")):
+                raise GrammarDrift(f"SIGNALS no longer has the form '(?:ONE){{1,9999}}': …{whole[-20:]}")
             self.one_signal = re.compile(whole[3 : -len("){1,9999}")])
         if self.one_signal is not None:
-            # Pieces of the SIGNALS terminal, written out here for speed; the assertion keeps
-            # them equal to the grammar's (tests build this class).
+            # Pieces of the SIGNALS terminal, written out here for speed; the check keeps them
+            # equal to the grammar's, also under ``python -O`` (tests build this class).
             whole = pattern_of("SIGNALS")
             for piece in (_BARE_REST, _LAST_REST, _SIGNAL_TAIL, "\\(" + _SIGNAL_OPEN_GUARDS):
-                assert piece in whole, f"grammar/peaks.lark changed: update {piece!r} in transform.py"
+                if piece not in whole:
+                    raise GrammarDrift(f"grammar/peaks.lark changed: update {piece!r} in transform.py")
             # One step of a SIGNALS token: a shift of a plain list (group "b"), tried first as the
             # lexer's alternation does, or the commonest detailed signal with its separator.
             # (NUMBER is atomic, so its match is the same in either branch: read it once.)
