@@ -8,10 +8,13 @@ from __future__ import annotations
 
 import os
 import sys
-from typing import NamedTuple
+from typing import TYPE_CHECKING, NamedTuple
 
 from .model import Document
 from .records import compared_by_class
+
+if TYPE_CHECKING:
+    from .readers.base import SourceText
 
 
 @compared_by_class
@@ -21,7 +24,7 @@ class Source(NamedTuple):
     text: str
     name: str
     format: str
-    reader: object | None = None  # readers.SourceText when read by a reader
+    reader: SourceText | None = None  # when read by a reader
 
     def locate(self, offset: int):
         if self.reader is not None:

@@ -36,7 +36,7 @@ class Coupling(NamedTuple):
 
     @property
     def heteronuclear(self) -> bool:
-        return bool(self.nuclei) and len(set(self.nuclei)) > 1
+        return bool(self.nuclei) and len(set(self.nuclei or ())) > 1
 
     def to_json(self) -> dict[str, Any]:
         return {
@@ -104,7 +104,7 @@ class Signal(NamedTuple):
     shift_span: Span | None = None
     multiplicity: Multiplicity | None = None
     couplings: tuple[Coupling, ...] = ()
-    count: float | None = None  # number of nuclei (2H → 2; 2 × 3H → 6)
+    count: float | None = None  # type: ignore[assignment]  # a field, though tuple has count(); nuclei: 2H → 2, 2 × 3H → 6
     count_nucleus: str | None = None  # "H", "C", "F", …
     count_text: str = ""
     count_span: Span | None = None
@@ -294,7 +294,7 @@ class Block(NamedTuple):
     compound: str | None = None  # label or name of the compound, when found
     compound_span: Span | None = None
     formula: str | None = None  # neutral formula written near the compound, when found
-    index: int = 0
+    index: int = 0  # type: ignore[assignment]  # a field, though tuple has index()
     suppressed: tuple[str, ...] = ()  # rules silenced for this block by an inline marker
 
     @property

@@ -8,11 +8,11 @@ faster).  A plain named tuple equals any tuple holding the same values; these do
 from __future__ import annotations
 
 
-def _eq(self, other: object) -> bool:
+def _eq(self: tuple, other: object) -> bool:
     return type(other) is type(self) and tuple.__eq__(self, other)
 
 
-def _ne(self, other: object) -> bool:
+def _ne(self: tuple, other: object) -> bool:
     return type(other) is not type(self) or tuple.__ne__(self, other)
 
 

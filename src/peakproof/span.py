@@ -24,11 +24,12 @@ class Span:
     def __init__(self, start: int, end: int, line: int, column: int, end_line: int, end_column: int):
         self.start = start
         self.end = end
-        self._where = (line, column, end_line, end_column)
+        # (line, column, end line, end column), or the LineIndex that works them out on first use
+        self._where: tuple[int, int, int, int] | LineIndex = (line, column, end_line, end_column)
 
     def _lines(self) -> tuple[int, int, int, int]:
         where = self._where
-        if type(where) is not tuple:  # a LineIndex: resolve once
+        if not isinstance(where, tuple):  # a LineIndex: resolve once
             where = self._where = where.positions(self.start, self.end)
         return where
 

@@ -164,6 +164,10 @@ class SourceText:
     """
 
     __slots__ = ("text", "format", "name", "notes", "_locator")
+    text: str
+    format: str
+    name: str
+    notes: tuple[str, ...]
 
     def __init__(self, text: str, format: str, name: str = "", notes: tuple[str, ...] = (),
                  locator: Callable[[int], Location] | None = None):
