@@ -139,7 +139,7 @@ def checked_format(
     doc: Document | None = None,
 ) -> Result:  # fmt: skip
     """Format ``text`` in ``style``, proving the result safe; raises :class:`UnsafeFormat`."""
-    from . import parse
+    from .parsing import parse
 
     doc = doc if doc is not None else parse(text, path=path)
     plan = plan_edits(doc, style, round_numbers=round_numbers)
@@ -162,7 +162,7 @@ def _prove(doc, text, plan, style, round_numbers, path, untouched=()) -> None:
 
     ``untouched``: original spans deliberately left as written; a second pass may still want to
     rewrite those, which is not a failure of the first."""
-    from . import parse
+    from .parsing import parse
 
     new_text = plan.apply(text)
     if not plan.edits:
@@ -213,7 +213,7 @@ def _salvage(doc, text, plan, style, round_numbers, path, failure: UnsafeFormat)
 
 def verify(before: Document, new_text: str, style: type[Style], *, round_numbers: bool = False):
     """Raise :class:`UnsafeFormat` unless ``new_text`` reads back as ``before``'s data."""
-    from . import parse
+    from .parsing import parse
 
     after = parse(new_text)
     new_errors = _errors(after) - _errors(before)
@@ -319,7 +319,7 @@ def verify_markup(
     text before, or after --fix the fixed text) under the allowed changes; a second format
     pass may change only what was left as written.
     """
-    from . import parse
+    from .parsing import parse
     from .emit import apply_edits
     from .readers import read_document
 
