@@ -216,10 +216,10 @@ def _table(path: str, content: str) -> list[Structure]:
 
 def _sd(path: str, content: str) -> list[Structure]:
     out = []
-    for number, record in enumerate(content.split("$$$$"), 1):
+    # a record's first line is its title (often blank): keep it, split only at "$$$$" lines
+    for number, record in enumerate(re.split(r"^\$\$\$\$[^\n]*\n?", content.replace("\r\n", "\n"), flags=re.M), 1):
         if not record.strip():
             continue
-        record = record.lstrip("\r\n")
         molblock, _, props_text = record.partition("M  END")
         props = dict(re.findall(r"^>\s*<([^>]+)>[^\n]*\n([^\n]*)", props_text, re.M))
         label = next((props[k].strip() for k in props if k.strip().lower() in _LABEL_PROPS
