@@ -9,13 +9,17 @@ import sys
 import pytest
 
 pytest.importorskip("rdkit")
-from rdkit import Chem  # noqa: E402
-from rdkit.Chem import rdMolDescriptors  # noqa: E402
+from rdkit import Chem
+from rdkit.Chem import rdMolDescriptors
 
-import peakproof  # noqa: E402
-from peakproof import api  # noqa: E402
-from peakproof.structures import (  # noqa: E402
-    Structure, facts, inline_structures, label_key, load_structures, match_structures,
+import peakproof
+from peakproof import api
+from peakproof.structures import (
+    Structure,
+    facts,
+    inline_structures,
+    label_key,
+    match_structures,
 )
 
 SRC = os.path.join(os.path.dirname(__file__), os.pardir, "src")
@@ -146,9 +150,18 @@ def test_cli_structures_reports_unmatched_and_bad_file(tmp_path):
     (tmp_path / "doc.txt").write_text(DOC)
     env = {**os.environ, "PYTHONPATH": os.path.abspath(SRC)}
     run = subprocess.run([sys.executable, "-m", "peakproof", "check", "doc.txt", "--structures", "s.csv"],
-                         cwd=tmp_path, env=env, capture_output=True, text=True)
+                         cwd=tmp_path, env=env, capture_output=True, text=True, check=False)
     assert "structure-carbon-classes" in run.stdout
     assert "'99' matches no compound" in run.stderr and "'7' has no structure" in run.stderr and "Traceback" not in run.stderr
     missing = subprocess.run([sys.executable, "-m", "peakproof", "check", "doc.txt", "--structures", "nope.csv"],
-                             cwd=tmp_path, env=env, capture_output=True, text=True)
+                             cwd=tmp_path, env=env, capture_output=True, text=True, check=False)
     assert missing.returncode == 2 and "nope.csv: no such file" in missing.stderr
+
+
+def test_rdkit_not_imported_when_no_structure_is_given():
+    code = ("import sys, peakproof\n"
+            "doc = peakproof.parse('13C{1H} NMR (101 MHz, CDCl3) δ 171.1, 60.5, 21.0, 14.2.')\n"
+            "peakproof.check(doc)\nprint('rdkit' in sys.modules)")
+    env = {**os.environ, "PYTHONPATH": os.path.abspath(SRC)}
+    out = subprocess.run([sys.executable, "-c", code], env=env, capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"

@@ -84,7 +84,8 @@ def check(document: Document, *, config=None, formula: str | None = None, struct
 def match_structures(document: Document, structures):
     """A side file's (or a list's) structures matched to the document's compounds by label;
     raises ``InputError`` when the file cannot be read."""
-    from .structures import StructureFileError, load_structures, match_structures as match
+    from .structures import StructureFileError, load_structures
+    from .structures import match_structures as match
 
     if not isinstance(structures, (list, tuple)):
         try:

@@ -227,7 +227,8 @@ def _check(args) -> int:
             status = EXIT_USAGE
             continue
         if getattr(args, "structures", None):
-            from .api import check as api_check, match_structures
+            from .api import check as api_check
+            from .api import match_structures
             from .structures import matching_report
 
             try:

@@ -217,11 +217,11 @@ def _table(path: str, content: str) -> list[Structure]:
 def _sd(path: str, content: str) -> list[Structure]:
     out = []
     # a record's first line is its title (often blank): keep it, split only at "$$$$" lines
-    for number, record in enumerate(re.split(r"^\$\$\$\$[^\n]*\n?", content.replace("\r\n", "\n"), flags=re.M), 1):
+    for number, record in enumerate(re.split(r"^\$\$\$\$[^\n]*\n?", content.replace("\r\n", "\n"), flags=re.MULTILINE), 1):
         if not record.strip():
             continue
         molblock, _, props_text = record.partition("M  END")
-        props = dict(re.findall(r"^>\s*<([^>]+)>[^\n]*\n([^\n]*)", props_text, re.M))
+        props = dict(re.findall(r"^>\s*<([^>]+)>[^\n]*\n([^\n]*)", props_text, re.MULTILINE))
         label = next((props[k].strip() for k in props if k.strip().lower() in _LABEL_PROPS
                       and props[k].strip()), None)
         if label is None:
@@ -231,8 +231,8 @@ def _sd(path: str, content: str) -> list[Structure]:
 
 
 # -- labels ---------------------------------------------------------------------------------------
-_WORD = re.compile(r"^(?:compound|product|cpd\.?|no\.?)\s*", re.I)
-_STEREO = re.compile(r"^(?:\((?:[RSEZ]\*?|[RS],\s*[RS]|\+|−|-|±)(?:,\s*[RSEZ])*\)|rac|rel|meso|[dl]|cis|trans)-", re.I)
+_WORD = re.compile(r"^(?:compound|product|cpd\.?|no\.?)\s*", re.IGNORECASE)
+_STEREO = re.compile(r"^(?:\((?:[RSEZ]\*?|[RS],\s*[RS]|\+|−|-|±)(?:,\s*[RSEZ])*\)|rac|rel|meso|[dl]|cis|trans)-", re.IGNORECASE)
 
 
 def label_key(label: str) -> str:
