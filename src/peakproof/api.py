@@ -70,16 +70,37 @@ def parse_path(path, *, fmt: str | None = None) -> tuple[Source, Document]:
     return source, parse_source(source)
 
 
-def check(document: Document | str, *, config=None, formula: str | None = None):
+def check(document: Document | str, *, config=None, formula: str | None = None, structures=None):
     """Findings and coupling networks (``checker.CheckResult``) for a parsed document, or for
-    text, which is parsed first (its syntax diagnostics are among the findings)."""
+    text, which is parsed first (its syntax diagnostics are among the findings).
+
+    ``structures``: a side file or folder path, a list of ``structures.Structure``, or the
+    ``structures.Matching`` that :func:`match_structures` returned; structures written in the
+    document itself (``SMILES: …``) are always used."""
     from .checker import check_document
 
     if isinstance(document, str):
         from .parsing import parse
 
         document = parse(document)
-    return check_document(document, config, formula)
+    if structures is not None and not hasattr(structures, "by_block"):
+        structures = match_structures(document, structures)
+    by_block = structures.by_block if structures is not None else None
+    return check_document(document, config, formula, structures=by_block)
+
+
+def match_structures(document: Document, structures):
+    """A side file's (or a list's) structures matched to the document's compounds by label;
+    raises ``InputError`` when the file cannot be read."""
+    from .structures import StructureFileError, load_structures
+    from .structures import match_structures as match
+
+    if not isinstance(structures, (list, tuple)):
+        try:
+            structures = load_structures(structures)
+        except StructureFileError as exc:
+            raise InputError(str(exc)) from None
+    return match(document, list(structures))
 
 
 def format_text(text: str, style: str = "letters-first", *, round_numbers: bool = False):

@@ -63,16 +63,20 @@ def check(document, config: Config | None = None, formula: str | None = None) ->
 
 
 def check_document(document, config: Config | None = None, formula: str | None = None, *,
-                   strict: bool = False) -> CheckResult:
-    """Findings plus the coupling networks; ``strict`` lets a failing rule raise (for tests)."""
+                   strict: bool = False, structures=None) -> CheckResult:
+    """Findings plus the coupling networks; ``strict`` lets a failing rule raise (for tests).
+
+    ``structures``: block index → ``structures.Structure`` from a side file (see
+    ``structures.match_structures``); a structure written in the document itself comes first."""
     # As in the parser: the findings have no reference cycles, and the collector's full scans of
     # a large parsed document would cost more than the rules.
     with collector_paused():
-        return _check_document(document, config, formula, strict)
+        return _check_document(document, config, formula, strict, structures)
 
 
-def _check_document(document, config, formula, strict) -> CheckResult:
+def _check_document(document, config, formula, strict, structures=None) -> CheckResult:
     from .rules import Context, all_rules, resolve_names
+    from .structures import inline_structures
 
     config = config or Config()
     if formula is not None:
@@ -83,8 +87,9 @@ def _check_document(document, config, formula, strict) -> CheckResult:
     pending: list = []
     neutral_override = _override_formula(config)
     block_rules = [rule for rule in rules if rule.scope == "block"]
+    by_block = {**(structures or {}), **inline_structures(document)}
     for block in document.blocks:
-        ctx = Context(document=document, config=config, index=index)
+        ctx = Context(document=document, config=config, index=index, structure=by_block.get(block.index))
         ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
         # without HRMS the search finds the same formula again unless HRMS was its source
         ctx.independent_formula = ctx.formula if ctx.formula_source != "HRMS" else \

@@ -28,6 +28,8 @@ def add_arguments(name, parser) -> None:
     parser.add_argument("--style", default=None, metavar="NAME",
                         help="the style the text is written in (see 'peakproof styles'); form rules "
                              "such as shift order and units follow it")
+    parser.add_argument("--structures", default=None, metavar="FILE",
+                        help="structures by compound label: CSV/TSV 'label,smiles', an SD file, or a folder of LABEL.mol")
     parser.add_argument("--config", default=None, metavar="FILE",
                         help="settings file (default: [tool.peakproof] of the nearest pyproject.toml)")
     parser.add_argument("--coupling-tolerance", type=float, default=None, metavar="HZ",
@@ -230,6 +232,10 @@ def _check(args) -> int:
         return EXIT_USAGE
     for problem in config.problems:
         print(f"peakproof: {problem}", file=sys.stderr)
+    if getattr(args, "structures", None) and _wants_batch(args):
+        print("peakproof: --structures matches labels within one document; give the files one at a time "
+              "(not with folders, globs, --jobs or --jsonl)", file=sys.stderr)
+        return EXIT_USAGE
     if _wants_batch(args):
         if args.format == "text":
             return _batch_check(args, config)
@@ -250,7 +256,21 @@ def _check(args) -> int:
             print(f"peakproof: {exc}", file=sys.stderr)
             status = EXIT_USAGE
             continue
-        result = check_document(doc, config)
+        if getattr(args, "structures", None):
+            from .api import check as api_check
+            from .api import match_structures
+            from .structures import matching_report
+
+            try:
+                matching = match_structures(doc, args.structures)
+            except InputError as exc:
+                print(f"peakproof: {exc}", file=sys.stderr)
+                return EXIT_USAGE
+            for line in matching_report(matching):
+                print(f"peakproof: {line}", file=sys.stderr)
+            result = api_check(doc, config=config, structures=matching)
+        else:
+            result = check_document(doc, config)
         reports.append((source, result.diagnostics))
         for d in result.diagnostics:
             counts[d.severity] += 1

@@ -35,6 +35,7 @@ FAMILIES = (
     "analysis",
     "form",
     "consistency",
+    "structure",
 )
 
 #: rule name → rule class, in registration order
@@ -152,6 +153,7 @@ class Context:
     formula_span: Span | None = None
     independent_formula: Any = None  # the formula from a source other than HRMS, for judging HRMS
     index: Any = None  # LineIndex of the document
+    structure: Any = None  # structures.Structure of the block's compound, or None
     _networks: dict[int, Any] = field(default_factory=dict)
     _shared: dict[Any, Any] = field(default_factory=dict)
 
