@@ -69,3 +69,25 @@ def test_a_changed_calcd_value_is_flagged_once(template, formula):
     text = "HRMS (ESI) m/z: " + template.format(calcd=f"{calcd + 0.0150:.4f}", found=f"{calcd + 0.0003:.4f}") + "."
     fired = [d.rule for d in mass_findings(text)]
     assert fired.count("hrms-calcd") == 1, (text, fired)
+
+
+# Isotope labels inside a formula are masses of those isotopes, not counts (issue 17 item 3).
+# molmass writes a nuclide as [15N]; the oracle formula is given beside the written one.
+LABELLED = [
+    ("C9H9D3NO2+", "C9H9[2H]3NO2"),
+    ("C6H5(15N)O2+", "C6H5[15N]O2"),
+    ("C6H7(13C)O+", "C6H7[13C]O"),
+    ("C2H3D3O+", "C2H3[2H]3O"),
+]
+
+
+@pytest.mark.parametrize("written,oracle", LABELLED)
+def test_isotope_labels_are_isotope_masses(written, oracle):
+    calcd = molmass.Formula(oracle).monoisotopic_mass - E
+    good = f"HRMS (EI) m/z: calcd for {written} {calcd:.4f}; found {calcd * (1 - 1e-6):.4f}."
+    assert mass_findings(good) == [], good
+    # the same line computed as if the label were the natural element must be flagged once
+    natural = molmass.Formula(oracle.replace("[2H]", "H").replace("[15N]", "N").replace("[13C]", "C"))
+    wrong = natural.monoisotopic_mass - E
+    bad = f"HRMS (EI) m/z: calcd for {written} {wrong:.4f}; found {calcd * (1 - 1e-6):.4f}."
+    assert [d.rule for d in mass_findings(bad)].count("hrms-calcd") == 1, bad
