@@ -970,7 +970,10 @@ def _bare_formula(tok: Token, keep_charge: bool = False) -> tuple[str, int, int]
     return text, start, start + len(text)
 
 
-_CHARGE_END = re.compile(r"(?:\d?[+\-−⁺⁻]|[•·])+$")
+_CHARGE_END = re.compile(r"(?:\^?\d?[+\-−⁺⁻]|[•·])+$")
+# After an unbracketed formula a digit before the sign is the last element's count
+# (C12H15O3+ is C12H15O3 with charge +); only ]3+ carries a charge number.
+_SIGN_END = re.compile(r"(?:\^?[+\-−⁺⁻]|[•·])+$")
 _ISOTOPE_LABEL = re.compile(r"^\d+[A-Z]")
 
 
@@ -980,14 +983,18 @@ def _formula_cut(value: str, keep_charge: bool) -> tuple[str, int]:
     text = value.rstrip()
     lead = 0
     if not keep_charge:
-        text = _CHARGE_END.sub("", text) if not text.endswith("]") else text
+        charge = _CHARGE_END.search(text)
+        if charge and text[: charge.start()].endswith("]"):
+            text = text[: charge.start()]
+        else:
+            text = _SIGN_END.sub("", text)
         if text.startswith("[") and "]" in text:
             close = text.rfind("]")
             inner = text[1:close]
             if not _ISOTOPE_LABEL.match(inner):  # not an isotope label such as [13C]
                 text = inner
                 lead = 1
-        text = _CHARGE_END.sub("", text)
+        text = _SIGN_END.sub("", text)
     return text, lead
 
 
