@@ -14,6 +14,7 @@ from typing import Any
 from .collector import collector_paused
 from .config import Config
 from .formula import FormulaError
+from .masses import formula_is_neutral_then_ion
 from .rules._util import formula as parse_formula, neutral_of as neutral_from_ion
 from .span import Diagnostic, LineIndex
 
@@ -190,6 +191,10 @@ def _override_formula(config: Config):
     return parse_formula(config.formula).neutral()
 
 
+def _decimals_of(text: str) -> int:
+    return len(text) - text.index(".") - 1 if "." in text else 0
+
+
 def block_formula(block, override=None, index: LineIndex | None = None, *, independent: bool = False):
     """(neutral Formula, where it came from, span) for a block; (None, None, None) when unknown.
 
@@ -202,6 +207,9 @@ def block_formula(block, override=None, index: LineIndex | None = None, *, indep
         for ms in block.mass_spec:
             if ms.formula and ms.ion:
                 try:
+                    if ms.calcd is not None and ms.calcd_text and formula_is_neutral_then_ion(
+                            ms.formula, ms.ion, ms.calcd, _decimals_of(ms.calcd_text)):
+                        return parse_formula(ms.formula).neutral(), "HRMS", ms.formula_span
                     return neutral_from_ion(ms.formula, ms.ion), "HRMS", ms.formula_span
                 except FormulaError:
                     continue

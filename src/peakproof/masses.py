@@ -123,6 +123,49 @@ def mz_without_electron(formula: Formula | str, charge: int | None = None) -> fl
     return monoisotopic_mass(f) / abs(z)
 
 
+def calcd_matches(calcd: float, decimals: int, formula: Formula, charge: int) -> bool:
+    """Whether a calcd m/z written to ``decimals`` places is this ion's value, rounded (or its
+    value without the electron mass, the common slip, which is the same ion)."""
+    allowed = 0.5 * 10 ** -decimals + 1e-5  # rounding, plus slack for other mass tables
+    try:
+        return any(abs(calcd - value) <= allowed
+                   for value in (mz(formula, charge), mz_without_electron(formula, charge)))
+    except MassError:
+        return False
+
+
+@lru_cache(maxsize=4096)
+def formula_is_neutral_then_ion(formula_text: str, ion_text: str, calcd: float, decimals: int) -> bool:
+    """``calcd for C14H21O3P [M + H]+ 269.1301``: the formula written is the neutral compound's
+    and the value is its ion's, a convention as common as writing the ion's formula.
+
+    True when the value fits the neutral-formula reading (formula plus adduct) and not the
+    reading of the formula as the ion itself, or, fitting neither, lies within 0.5 u of the
+    neutral reading's value and nearer to it (a typing error in the value, not in the formula).
+    """
+    from .formula import FormulaError, ion_formula, parse_ion
+
+    try:
+        written = parse_formula(formula_text)
+        ion = parse_ion(ion_text)
+        as_neutral = ion_formula(written.neutral(), ion)
+    except FormulaError:
+        return False
+    if not ion.charge:
+        return False
+    as_written = written.charge or ion.charge
+    if calcd_matches(calcd, decimals, written, as_written):
+        return False
+    if calcd_matches(calcd, decimals, as_neutral, ion.charge):
+        return True
+    try:
+        near_neutral = abs(calcd - mz(as_neutral, ion.charge))
+        near_written = abs(calcd - mz(written, as_written))
+    except MassError:
+        return False
+    return near_neutral < 0.5 and near_neutral < near_written
+
+
 def mass_percentages(formula: Formula | str) -> dict[str, float]:
     """Mass % of each element, for elemental analysis, in Hill order.
 

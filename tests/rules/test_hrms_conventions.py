@@ -91,3 +91,57 @@ def test_isotope_labels_are_isotope_masses(written, oracle):
     wrong = natural.monoisotopic_mass - E
     bad = f"HRMS (EI) m/z: calcd for {written} {wrong:.4f}; found {calcd * (1 - 1e-6):.4f}."
     assert [d.rule for d in mass_findings(bad)].count("hrms-calcd") == 1, bad
+
+
+# The neutral formula followed by the ion type: a convention, read by the value it gives.
+# Expected m/z: molmass monoisotopic mass of the ion (outside oracle) ∓ the electron mass.
+NEUTRAL_THEN_ION = [  # neutral formula, ion type, formula of the ion (what molmass weighs), z
+    ("C14H21O3P", "[M + H]+", "C14H22O3P", 1),
+    ("C12H14O3", "[M + Na]+", "C12H14O3Na", 1),
+    ("C10H12O2", "[M + K]+", "C10H12O2K", 1),
+    ("C9H10O3", "[M + NH4]+", "C9H14NO3", 1),
+    ("C11H13NO2", "[M + H]+", "C11H14NO2", 1),
+    ("C8H8O3", "[M − H]−", "C8H7O3", -1),
+    ("C13H18O2", "[M + Na]+", "C13H18O2Na", 1),
+    ("C7H5BrO2", "[M + H]+", "C7H6BrO2", 1),
+]
+
+
+def _value(ion_formula: str, z: int) -> float:
+    return molmass.Formula(ion_formula).monoisotopic_mass - z * E
+
+
+@pytest.mark.parametrize("neutral, ion, ion_formula, z", NEUTRAL_THEN_ION)
+def test_neutral_formula_then_ion_is_read_by_its_value(neutral, ion, ion_formula, z):
+    calcd = _value(ion_formula, z)
+    line = f"HRMS (ESI) m/z calcd for {neutral} {ion} {calcd:.4f}, found {calcd + 0.0003:.4f}."
+    found = mass_findings(line)
+    assert [d.rule for d in found] == ["hrms-neutral-formula"], [d.message for d in found]
+    assert found[0].severity == "note"
+
+
+@pytest.mark.parametrize("neutral, ion, ion_formula, z", NEUTRAL_THEN_ION)
+def test_neutral_reading_with_a_wrong_value_is_flagged_once(neutral, ion, ion_formula, z):
+    calcd = _value(ion_formula, z) + 0.0100  # a typing error in the calcd value
+    line = f"HRMS (ESI) m/z calcd for {neutral} {ion} {calcd:.4f}, found {calcd - 0.0098:.4f}."
+    errors = [d for d in mass_findings(line) if d.severity in ("error", "warning")]
+    assert len(errors) == 1, [d.message for d in errors]
+
+
+def test_neutral_reading_gives_the_block_its_neutral_formula():
+    """The H count of the integrations is judged against the neutral formula, not one H less."""
+    calcd = _value("C12H17O3", 1)
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.10 (d, J = 8.6 Hz, 2H), 6.84 (d, J = 8.6 Hz, 2H), "
+            "4.12 (q, J = 7.1 Hz, 2H), 3.79 (s, 3H), 2.88 (t, J = 7.6 Hz, 2H), 2.58 (t, J = 7.6 Hz, 2H), "
+            f"1.23 (t, J = 7.1 Hz, 3H); HRMS (ESI) m/z calcd for C12H16O3 [M + H]+ {calcd:.4f}, "
+            f"found {calcd + 0.0002:.4f}.")
+    rules = {d.rule for d in check(peakproof.parse(text))}
+    assert "integration-h-count" not in rules and "hrms-calcd" not in rules
+
+
+def test_wrong_species_is_one_finding():
+    """Calcd computed for the formula as written although the ion has an adduct: hrms-adduct
+    says so once; no second error for the same slip."""
+    wrong = _value("C12H14O3", 1)
+    line = f"HRMS (ESI) m/z [M + Na]+ calcd for C12H14O3 {wrong:.4f}, found 229.0838."
+    assert [d.rule for d in mass_findings(line)] == ["hrms-adduct"]

@@ -5,7 +5,7 @@ from __future__ import annotations
 import functools
 
 from ..formula import FormulaError, ion_formula, neutral_from_ion
-from ..masses import MassError, mz, mz_without_electron, ppm_error
+from ..masses import MassError, calcd_matches, formula_is_neutral_then_ion, mz, mz_without_electron, ppm_error
 from . import Rule, _util, suggestion
 from ._util import fmt
 
@@ -17,16 +17,21 @@ def _decimals(text: str) -> int:
 def intended_ion(ms, ctx):
     if not ms.formula:
         return None
-    return _intended_ion(ms.formula, ms.ion, ctx.independent_formula)
+    calcd = ms.calcd if ms.calcd is not None and ms.calcd_text else None
+    decimals = _decimals(ms.calcd_text) if calcd is not None else 0
+    return _intended_ion(ms.formula, ms.ion, ctx.independent_formula, calcd, decimals)
 
 
 @functools.lru_cache(maxsize=4096)
-def _intended_ion(formula_text, ion_text, independent):
-    """What the ion formula was meant to be: (ion Formula with charge, z, charge assumed?, problem).
+def _intended_ion(formula_text, ion_text, independent, calcd=None, decimals=0):
+    """What the ion formula was meant to be: (ion Formula with charge, z, charge assumed?,
+    problem, neutral reading?).
 
     ``problem`` says why the written formula is not the ion (adduct missing, or the neutral
     compound's formula written); the returned formula is then the corrected one, so the calcd
-    and found checks judge the numbers against the ion the author meant.
+    and found checks judge the numbers against the ion the author meant. When the calcd value
+    shows the formula was written as the neutral compound's, followed by the ion type (a
+    convention, not a slip), the ion is that formula plus the adduct and there is no problem.
     """
     try:
         written = _util.formula(formula_text)
@@ -38,6 +43,10 @@ def _intended_ion(formula_text, ion_text, independent):
             ion = _util.ion_type(ion_text)
         except FormulaError:
             ion = None
+    if ion is not None and calcd is not None and \
+            formula_is_neutral_then_ion(formula_text, ion_text, calcd, decimals):
+        intended = ion_formula(written.neutral(), ion)
+        return intended.with_charge(ion.charge), ion.charge, False, None, True
     problem = None
     intended = written
     if ion is not None:
@@ -58,7 +67,14 @@ def _intended_ion(formula_text, ion_text, independent):
         z = ion.charge
     if not z:
         z, assumed = (intended.charge or 1), not intended.charge
-    return intended.with_charge(z), z, assumed, problem
+    return intended.with_charge(z), z, assumed, problem, False
+
+
+def _fits_written_formula(ms, decimals: int, z: int) -> bool:
+    try:
+        return calcd_matches(ms.calcd, decimals, _util.formula(ms.formula), z)
+    except FormulaError:
+        return False
 
 
 class HrmsCalcd(Rule):
@@ -84,12 +100,14 @@ class HrmsCalcd(Rule):
             ion = intended_ion(ms, ctx)
             if ion is None or ms.calcd is None or not ms.calcd_text:
                 continue
-            formula, z, assumed, _ = ion
+            formula, z, assumed = ion[:3]
             try:
                 right, wrong = mz(formula, z), mz_without_electron(formula, z)
             except MassError:
                 continue
             d = _decimals(ms.calcd_text)
+            if ion[3] is not None and _fits_written_formula(ms, d, z):
+                continue  # computed for the formula as written: hrms-adduct names that one cause
             allowed = 0.5 * 10 ** -d + 1e-5  # rounding, plus slack for other mass tables
             if abs(ms.calcd - right) <= allowed:
                 continue
@@ -168,8 +186,9 @@ class HrmsAdduct(Rule):
     )
     source = "common practice; Brenton & Godfrey, J. Am. Soc. Mass Spectrom. 2010, 21, 1821"
     examples = (
-        ("fail", "HRMS (ESI) m/z [M + Na]+ calcd for C12H14O3 229.0835, found 229.0838."),
-        ("fail", "HRMS (ESI) m/z [M + H]+ calcd for C12H14O3 207.1016, found 207.1012.", "C12H14O3"),
+        ("fail", "HRMS (ESI) m/z [M + Na]+ calcd for C12H14O3 206.0937, found 229.0838."),
+        ("fail", "HRMS (ESI) m/z [M + H]+ calcd for C12H14O3 206.0937, found 207.1012.", "C12H14O3"),
+        ("pass", "HRMS (ESI) m/z [M + Na]+ calcd for C12H14O3 229.0835, found 229.0838."),
         ("pass", "HRMS (ESI) m/z [M + H]+ calcd for C12H15O3 207.1016, found 207.1012.", "C12H14O3"),
     )
 
@@ -188,4 +207,39 @@ class HrmsAdduct(Rule):
                 ms.formula_span or ms.span, written=ms.formula, problem=ion[3], ion=name,
                 expected=expected, data={"written": ms.formula, "ion": name, "expected": expected},
                 suggestion=fix,
+            )
+
+
+class HrmsNeutralFormula(Rule):
+    """The formula after 'calcd for' is the neutral compound's; the value is its ion's."""
+
+    name = "hrms-neutral-formula"
+    code = "PP604"
+    severity = "note"
+    message = ("calcd for {written} {ion} is read as the neutral formula followed by the ion: the value "
+               "{calcd} is that of {ion_formula}; writing the ion's formula makes it unambiguous")
+    rationale = (
+        "Authors write 'calcd for C14H21O3P [M + H]+ 269.1301' (the neutral formula, then the ion) "
+        "as often as 'calcd for C14H22O3P+ 269.1301' (the ion's formula). Both are correct when the "
+        "number fits; the value decides which reading was meant, and only the form is noted."
+    )
+    source = "common practice"
+    examples = (
+        ("fail", "HRMS (ESI) m/z calcd for C12H14O3 [M + H]+ 207.1016, found 207.1012."),
+        ("pass", "HRMS (ESI) m/z calcd for C12H15O3 [M + H]+ 207.1016, found 207.1012."),
+        ("pass", "HRMS (ESI) m/z [M + Na]+ calcd for C12H14O3Na 229.0835, found 229.0838."),
+    )
+
+    def check(self, block, ctx):
+        for ms in block.mass_spec:
+            if not ms.ion:
+                continue
+            ion = intended_ion(ms, ctx)
+            if ion is None or not ion[4]:
+                continue
+            name = _util.ion_type(ms.ion).normalized
+            yield self.finding(
+                ms.formula_span or ms.span, written=ms.formula, ion=name, calcd=ms.calcd_text,
+                ion_formula=ion[0].hill(),
+                data={"written": ms.formula, "ion": name, "ion_formula": ion[0].hill()},
             )
