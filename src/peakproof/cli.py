@@ -25,6 +25,12 @@ COMMANDS: dict[str, tuple[str, str]] = {
 }
 
 EXIT_OK, EXIT_FINDINGS, EXIT_USAGE = 0, 1, 2
+#: ``format``: a rewrite could not be proven to keep the data, so nothing was written.
+EXIT_UNPROVEN = 3
+#: a bug inside peakproof (reported as an ``internal-error`` diagnostic, never a traceback).
+EXIT_INTERNAL = 4
+#: ``format``: the file is read-only (no write bit in its mode); it is left alone.
+EXIT_READ_ONLY = 5
 
 
 def _top_parser() -> argparse.ArgumentParser:
