@@ -98,7 +98,7 @@ def _run_styles(args) -> int:
 def _run_export(args) -> int:
     from .api import InputError, parse_path
     from .export import export
-    from .safety import write_atomically
+    from .safety import ReadOnlyFile, write_atomically
 
     from .batch import names_several
 
@@ -123,7 +123,11 @@ def _run_export(args) -> int:
         return status
     text = export(docs, args.to, args.per)
     if args.output:
-        write_atomically(args.output, text.encode("utf-8"))
+        try:
+            write_atomically(args.output, text.encode("utf-8"))
+        except ReadOnlyFile as exc:
+            print(f"peakproof: {exc}", file=sys.stderr)
+            return EXIT_READ_ONLY
     else:
         sys.stdout.write(text)
     return status
@@ -217,7 +221,7 @@ def _rank(code: int) -> int:
 def _format_one(path, style, args, check, counts) -> int:
     from . import parse
     from .api import InputError, read_source
-    from .safety import UnsafeFormat, apply_fixes, checked_format, write_atomically
+    from .safety import ReadOnlyFile, UnsafeFormat, apply_fixes, checked_format, write_atomically
 
     try:
         source = read_source(path, fmt=args.input_format)
@@ -296,6 +300,9 @@ def _format_one(path, style, args, check, counts) -> int:
     if rewritten is not None:
         try:
             write_atomically(path, rewritten[1])
+        except ReadOnlyFile as exc:
+            print(f"peakproof: {name}: {exc}", file=sys.stderr)
+            return EXIT_READ_ONLY
         except OSError as exc:
             print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
                   file=sys.stderr)  # fmt: skip
@@ -309,6 +316,11 @@ def _format_one(path, style, args, check, counts) -> int:
     except UnsafeFormat as exc:
         counts["changed"] -= 1
         return _internal_error(name, exc, counts)
+    except ReadOnlyFile as exc:
+        counts["changed"] -= 1
+        counts["unchanged"] += 1
+        print(f"peakproof: {name}: {exc}", file=sys.stderr)
+        return EXIT_READ_ONLY
     except (OSError, ValueError) as exc:
         print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
               file=sys.stderr)  # fmt: skip
