@@ -80,6 +80,14 @@ def main(argv: list[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as exc:  # a bug of ours: one line for people, never a traceback
+        where = getattr(exc, "__traceback__", None)
+        while where is not None and where.tb_next is not None:
+            where = where.tb_next
+        place = f" ({where.tb_frame.f_code.co_filename.rsplit('/', 1)[-1]}:{where.tb_lineno})" if where else ""
+        print(f"peakproof {name}: internal-error: {type(exc).__name__}: {exc}{place}; this is a bug "
+              "in peakproof, not in your file: please report it with the input", file=sys.stderr)  # fmt: skip
+        return EXIT_INTERNAL
 
 
 if __name__ == "__main__":  # pragma: no cover
