@@ -25,7 +25,7 @@ def messy(tmp_path, monkeypatch):
 def test_check_exits_1_and_writes_nothing(messy, capsys):
     assert main(["format", "--check", str(messy)]) == 1
     assert messy.read_text(encoding="utf-8") == MESSY
-    assert "would reformat" in capsys.readouterr().err
+    assert f"{messy.name}: not in style yet" in capsys.readouterr().err
 
 
 def test_diff_prints_a_unified_diff_and_writes_nothing(messy, capsys):
@@ -40,7 +40,7 @@ def test_in_place_then_check_is_clean(messy, capsys):
     assert messy.read_text(encoding="utf-8") == CLEAN
     assert not [p for p in os.listdir(messy.parent) if p.startswith(".peakproof-")]  # no temp left
     err = capsys.readouterr().err
-    assert "listed the 1H signals descending" in err and "reformatted" in err
+    assert "listed the 1H signals descending" in err and f"{messy.name}: restyled" in err
     assert main(["format", "--check", str(messy)]) == 0
 
 
@@ -59,16 +59,16 @@ def test_usage_errors_exit_2(messy, capsys):
     assert "no such file" in capsys.readouterr().err
 
 
-def test_internal_error_exits_123_and_writes_nothing(messy, monkeypatch, capsys):
+def test_unproven_rewrite_exits_3_and_writes_nothing(messy, monkeypatch, capsys):
     import peakproof.emit as emit
 
     # A deliberately broken emitter (every multiplicity becomes m): the safety check must
     # refuse to write.
     monkeypatch.setattr(emit.Emitter, "multiplicity_text", lambda self, mult: "m")
-    assert main(["format", str(messy)]) == 123
+    assert main(["format", str(messy)]) == 3
     assert messy.read_text(encoding="utf-8") == MESSY
     err = capsys.readouterr().err
-    assert "internal error" in err and "nothing was written" in err and "output data" in err
+    assert "rewrite not proven" in err and "nothing was written" in err and "output data" in err
 
 
 def test_fix_applies_checker_suggestions_and_lists_them(tmp_path, monkeypatch, capsys):

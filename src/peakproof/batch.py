@@ -22,6 +22,7 @@ long the run is.
 
 from __future__ import annotations
 
+import errno
 import glob
 import json
 import os
@@ -81,6 +82,10 @@ def expand_inputs(inputs: Iterable[str], recursive: bool = True
         if key in seen:
             return
         seen.add(key)
+        broken = _broken_link(path)
+        if broken:
+            problems.append(InputProblem(path, broken))
+            return
         if not os.access(path, os.R_OK):
             problems.append(InputProblem(path, "permission denied (the file cannot be read)"))
             return
@@ -97,7 +102,7 @@ def expand_inputs(inputs: Iterable[str], recursive: bool = True
                                              + " files"))  # fmt: skip
             for path in found:
                 take(path)
-        elif os.path.exists(item):
+        elif os.path.exists(item) or os.path.islink(item):
             take(item)
         elif _GLOB_CHARS & set(item):
             matches = sorted(glob.glob(item, recursive=recursive))
@@ -109,6 +114,40 @@ def expand_inputs(inputs: Iterable[str], recursive: bool = True
         else:
             problems.append(InputProblem(item, "no such file or folder"))
     return files, problems
+
+
+def _broken_link(path: str) -> str:
+    """What is wrong with ``path`` as a symlink ("" when it is none, or leads to a file)."""
+    if not os.path.islink(path):
+        return ""
+    try:
+        os.stat(path)
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            return "symlink loop (the link leads back to itself)"
+        if exc.errno == errno.ENOENT:
+            return f"dangling symlink (it points to {os.readlink(path)!r}, which does not exist)"
+        return f"symlink that cannot be followed ({exc.strerror})"
+    return ""
+
+
+def _die_with_parent(parent: int) -> None:
+    """Worker initializer: end this worker when the process that started it is gone.
+
+    A watchdog thread polls ``os.getppid()`` (a killed parent re-parents the worker), so a
+    ``kill -9`` of the batch does not leave workers running.
+    """
+    import threading
+    import time
+
+    def watch() -> None:
+        while os.getppid() == parent:
+            time.sleep(0.25)
+        os._exit(1)
+
+    if os.getppid() != parent:
+        os._exit(1)
+    threading.Thread(target=watch, name="peakproof-parent-watch", daemon=True).start()
 
 
 def _hidden(path: str) -> bool:
@@ -166,7 +205,8 @@ def _run_parallel(files: Iterator[str], worker, jobs: int, progress, window: int
     from concurrent.futures.process import BrokenProcessPool
 
     def new_pool():
-        return ProcessPoolExecutor(max_workers=jobs, mp_context=mp_context)
+        return ProcessPoolExecutor(max_workers=jobs, mp_context=mp_context,
+                                   initializer=_die_with_parent, initargs=(os.getpid(),))  # fmt: skip
 
     pool = new_pool()
     in_flight: deque[tuple[str, Any]] = deque()

@@ -91,10 +91,16 @@ def _check_document(document, config, formula, strict, structures=None) -> Check
     by_block = {**(structures or {}), **inline_structures(document)}
     for block in document.blocks:
         ctx = Context(document=document, config=config, index=index, structure=by_block.get(block.index))
-        ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
-        # without HRMS the search finds the same formula again unless HRMS was its source
-        ctx.independent_formula = ctx.formula if ctx.formula_source != "HRMS" else \
-            block_formula(block, neutral_override, index, independent=True)[0]
+        try:
+            ctx.formula, ctx.formula_source, ctx.formula_span = block_formula(block, neutral_override, index)
+            # without HRMS the search finds the same formula again unless HRMS was its source
+            ctx.independent_formula = ctx.formula if ctx.formula_source != "HRMS" else \
+                block_formula(block, neutral_override, index, independent=True)[0]
+        except Exception as exc:  # a bug in the formula search: say so at this block, go on
+            if strict:
+                raise
+            findings.append(_internal_error(_FormulaSearch, block, ctx, exc))
+            continue
         silenced = _suppressed(block, resolve_names) if block.suppressed else ()
         for rule in block_rules:
             if rule.name not in silenced:
@@ -130,6 +136,10 @@ def _run_into(findings: list[Diagnostic], rule, block, ctx, strict: bool) -> Non
         if strict:
             raise
         findings.append(_internal_error(rule, block, ctx, exc))
+
+
+class _FormulaSearch:  # stands for a rule in the internal-error message
+    name = "formula search"
 
 
 def _internal_error(rule, target, ctx, exc: Exception) -> Diagnostic:

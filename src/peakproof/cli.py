@@ -25,6 +25,12 @@ COMMANDS: dict[str, tuple[str, str]] = {
 }
 
 EXIT_OK, EXIT_FINDINGS, EXIT_USAGE = 0, 1, 2
+#: ``format``: a rewrite could not be proven to keep the data, so nothing was written.
+EXIT_UNPROVEN = 3
+#: a bug inside peakproof (reported as an ``internal-error`` diagnostic, never a traceback).
+EXIT_INTERNAL = 4
+#: ``format``: the file is read-only (no write bit in its mode); it is left alone.
+EXIT_READ_ONLY = 5
 
 
 def _top_parser() -> argparse.ArgumentParser:
@@ -74,6 +80,14 @@ def main(argv: list[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         return EXIT_OK
+    except Exception as exc:  # a bug of ours: one line for people, never a traceback
+        where = getattr(exc, "__traceback__", None)
+        while where is not None and where.tb_next is not None:
+            where = where.tb_next
+        place = f" ({where.tb_frame.f_code.co_filename.rsplit('/', 1)[-1]}:{where.tb_lineno})" if where else ""
+        print(f"peakproof {name}: internal-error: {type(exc).__name__}: {exc}{place}; this is a bug "
+              "in peakproof, not in your file: please report it with the input", file=sys.stderr)  # fmt: skip
+        return EXIT_INTERNAL
 
 
 if __name__ == "__main__":  # pragma: no cover

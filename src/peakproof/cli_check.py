@@ -6,7 +6,7 @@ import json
 import re
 import sys
 
-from .cli import EXIT_FINDINGS, EXIT_OK, EXIT_USAGE
+from .cli import EXIT_FINDINGS, EXIT_INTERNAL, EXIT_OK, EXIT_USAGE
 
 
 def add_arguments(name, parser) -> None:
@@ -274,7 +274,9 @@ def _check(args) -> int:
         reports.append((source, result.diagnostics))
         for d in result.diagnostics:
             counts[d.severity] += 1
-            if at_or_above(d.severity, config.fail_on) and status == EXIT_OK:
+            if d.rule == "internal-error":  # a bug of ours, not a finding: its own exit code
+                status = EXIT_INTERNAL
+            elif at_or_above(d.severity, config.fail_on) and status == EXIT_OK:
                 status = EXIT_FINDINGS
         if args.format == "json":
             find_block = _block_finder(doc)

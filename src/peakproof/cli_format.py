@@ -1,8 +1,9 @@
 """``peakproof format``, ``peakproof export`` and ``peakproof styles``.
 
 Exit codes of ``format``: 0 done (or nothing to change); 1 ``--check`` found files that would
-change; 2 a usage problem or an unreadable file; 123 an internal error — the output did not
-read back as the input's data, so nothing was written for that file.
+change; 2 a usage problem or an unreadable file; 3 a rewrite could not be proven — the output did
+not read back as the input's data, so nothing was written for that file; 4 an internal error
+(a bug, reported without a traceback); 5 a read-only file, left alone.
 """
 
 from __future__ import annotations
@@ -10,10 +11,9 @@ from __future__ import annotations
 import difflib
 import sys
 
-from .cli import EXIT_OK, EXIT_USAGE
+from .cli import EXIT_INTERNAL, EXIT_OK, EXIT_READ_ONLY, EXIT_UNPROVEN, EXIT_USAGE
 
 EXIT_WOULD_CHANGE = 1
-EXIT_INTERNAL = 123
 
 
 def add_arguments(name, parser) -> None:
@@ -53,7 +53,7 @@ def add_arguments(name, parser) -> None:
                         help="round shifts and J to the style's decimals (reported; never pads)")  # fmt: skip
     parser.add_argument("-q", "--quiet", action="store_true", help="do not list the changes")
     parser.epilog = ("exit codes: 0 ok, 1 --check found changes, 2 usage or unreadable file, "
-                     "123 internal error (nothing written)")  # fmt: skip
+                     "3 rewrite not proven (nothing written), 4 internal error, 5 read-only file")  # fmt: skip
 
 
 def run(args) -> int:
@@ -98,7 +98,7 @@ def _run_styles(args) -> int:
 def _run_export(args) -> int:
     from .api import InputError, parse_path
     from .export import export
-    from .safety import write_atomically
+    from .safety import ReadOnlyFile, write_atomically
 
     from .batch import names_several
 
@@ -123,7 +123,11 @@ def _run_export(args) -> int:
         return status
     text = export(docs, args.to, args.per)
     if args.output:
-        write_atomically(args.output, text.encode("utf-8"))
+        try:
+            write_atomically(args.output, text.encode("utf-8"))
+        except ReadOnlyFile as exc:
+            print(f"peakproof: {exc}", file=sys.stderr)
+            return EXIT_READ_ONLY
     else:
         sys.stdout.write(text)
     return status
@@ -193,29 +197,31 @@ def _run_format(args) -> int:
         code = _format_one(path, style, args, check, counts)
         status = max(status, code, key=_rank)
     if not args.quiet and len(args.files) > 1 or counts["failed"]:
-        verb = "would be reformatted" if (args.check or args.diff) else "reformatted"
-        print(f"{counts['changed']} file(s) {verb}, {counts['unchanged']} unchanged"
-              + (f", {counts['failed']} failed" if counts["failed"] else ""), file=sys.stderr)  # fmt: skip
+        verb = "to restyle" if (args.check or args.diff) else "restyled"
+        print(f"peakproof format: {counts['changed']} {verb}, {counts['unchanged']} already in style"
+              + (f", {counts['failed']} not proven" if counts["failed"] else ""), file=sys.stderr)  # fmt: skip
     return status
 
 
 def _internal_error(name: str, exc, counts) -> int:
     """Say that a rewrite could not be proven safe; nothing is written."""
     counts["failed"] += 1
-    print(f"peakproof: internal error: {name}: {exc.message}; nothing was written.", file=sys.stderr)
+    print(f"peakproof: {name}: rewrite not proven: {exc.message}; nothing was written.",
+          file=sys.stderr)  # fmt: skip
     if exc.diff:
         print(exc.diff, file=sys.stderr)
-    return EXIT_INTERNAL
+    return EXIT_UNPROVEN
 
 
 def _rank(code: int) -> int:
-    return {EXIT_OK: 0, EXIT_WOULD_CHANGE: 1, EXIT_USAGE: 2, EXIT_INTERNAL: 3}.get(code, 2)
+    return {EXIT_OK: 0, EXIT_WOULD_CHANGE: 1, EXIT_USAGE: 2, EXIT_READ_ONLY: 3, EXIT_UNPROVEN: 4,
+            EXIT_INTERNAL: 5}.get(code, 2)  # fmt: skip
 
 
 def _format_one(path, style, args, check, counts) -> int:
     from . import parse
     from .api import InputError, read_source
-    from .safety import UnsafeFormat, apply_fixes, checked_format, write_atomically
+    from .safety import ReadOnlyFile, UnsafeFormat, apply_fixes, checked_format, write_atomically
 
     try:
         source = read_source(path, fmt=args.input_format)
@@ -242,11 +248,11 @@ def _format_one(path, style, args, check, counts) -> int:
             verify(parse(work), result.text, style, round_numbers=args.round)
     except UnsafeFormat as exc:
         counts["failed"] += 1
-        print(f"peakproof: internal error: {name}: {exc.message}; nothing was written. "
+        print(f"peakproof: {name}: rewrite not proven: {exc.message}; nothing was written. "
               "Please report this with the diff below.", file=sys.stderr)  # fmt: skip
         if exc.diff:
             print(exc.diff, file=sys.stderr)
-        return EXIT_INTERNAL
+        return EXIT_UNPROVEN
     final = result.text
     if not args.quiet:
         for line in fixes:
@@ -280,7 +286,7 @@ def _format_one(path, style, args, check, counts) -> int:
             f"{name} (original)", f"{name} (formatted)"))  # fmt: skip
     if args.check or args.diff:
         if changed and args.check and not args.quiet:
-            print(f"would reformat {name}", file=sys.stderr)
+            print(f"{name}: not in style yet (format would restyle it)", file=sys.stderr)
         return EXIT_WOULD_CHANGE if (changed and args.check) else EXIT_OK
     if path == "-" or source.format == "pdf":
         if source.format == "pdf" and not args.quiet:
@@ -294,12 +300,15 @@ def _format_one(path, style, args, check, counts) -> int:
     if rewritten is not None:
         try:
             write_atomically(path, rewritten[1])
+        except ReadOnlyFile as exc:
+            print(f"peakproof: {name}: {exc}", file=sys.stderr)
+            return EXIT_READ_ONLY
         except OSError as exc:
             print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
                   file=sys.stderr)  # fmt: skip
             return EXIT_USAGE
         if not args.quiet:
-            print(f"reformatted {name}", file=sys.stderr)
+            print(f"{name}: restyled", file=sys.stderr)
         return EXIT_OK
     edits = result.plan.edits if not fixes else _line_edits(text, final)
     try:
@@ -307,6 +316,11 @@ def _format_one(path, style, args, check, counts) -> int:
     except UnsafeFormat as exc:
         counts["changed"] -= 1
         return _internal_error(name, exc, counts)
+    except ReadOnlyFile as exc:
+        counts["changed"] -= 1
+        counts["unchanged"] += 1
+        print(f"peakproof: {name}: {exc}", file=sys.stderr)
+        return EXIT_READ_ONLY
     except (OSError, ValueError) as exc:
         print(f"peakproof: {name}: cannot write the file ({exc}); nothing was written",
               file=sys.stderr)  # fmt: skip
@@ -315,7 +329,7 @@ def _format_one(path, style, args, check, counts) -> int:
         counts["changed"] -= 1
         counts["unchanged"] += 1
     if not args.quiet:
-        print(f"reformatted {name}" if written else f"{name}: left as written", file=sys.stderr)
+        print(f"{name}: restyled" if written else f"{name}: left as written", file=sys.stderr)
     return EXIT_OK
 
 

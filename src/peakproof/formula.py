@@ -60,6 +60,11 @@ _GRAMMAR_DIR = Path(__file__).parent / "grammar"
 _parser: Any = None  # the Lark parser, built on first use
 
 
+#: An element count longer than this is refused (one million atoms of an element is beyond any
+#: molecule characterised by NMR; the bound keeps counts far from int's string-length limit).
+MAX_COUNT_DIGITS = 6
+
+
 class FormulaError(ValueError):
     """A formula or ion type that cannot be read, or arithmetic that makes no sense.
 
@@ -354,6 +359,10 @@ def parse_formula(text: str) -> Formula:
         for symbol, digits in _ELEMENT_COUNT.findall(text):
             if symbol not in _ELEMENTS or symbol in ("D", "T") or digits.startswith("0"):
                 break  # unknown symbols, isotopes, zero counts: the grammar reads (or explains) it
+            if len(digits) > MAX_COUNT_DIGITS:
+                raise FormulaError(f"the count of {symbol} has {len(digits)} digits; no molecule "
+                                   f"has more than {MAX_COUNT_DIGITS}: check the formula", text,
+                                   text.find(digits))  # fmt: skip
             counts[symbol] = counts.get(symbol, 0) + (int(digits) if digits else 1)
         else:
             return Formula(counts, 0, text, False)

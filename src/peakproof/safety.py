@@ -265,40 +265,117 @@ def apply_fixes(text: str, diagnostics) -> tuple[str, list[str]]:
 
 
 # ---- writing -----------------------------------------------------------------------------
+class ReadOnlyFile(OSError):
+    """The file to rewrite has no write bit in its mode; it is left alone.
+
+    Checked on the mode bits themselves, so the refusal holds for root too (whom the
+    permission bits would not stop).
+    """
+
+
 def write_atomically(path: str | os.PathLike, data: bytes) -> None:
-    """Write ``data`` to a temporary file beside ``path``, then move it into place."""
-    path = os.fspath(path)
-    folder = os.path.dirname(os.path.abspath(path))
+    """Write ``data`` to ``path`` so that a crash leaves the old or the new bytes, never a mix.
+
+    The file is respected as it stands:
+
+    - a **symlink** is written through: the link stays a link and its target gets the new
+      bytes (the temporary file is made beside the target, so the final rename stays on one
+      file system);
+    - a file with no write bit (for example mode 0444) is refused with :class:`ReadOnlyFile`
+      before anything is written;
+    - **mode and owner** are kept (the owner as far as the caller may set it);
+    - a file with **hard links** (link count above 1) keeps its inode, so every name still
+      shows the new bytes: the new bytes are first written to a temporary file beside it and
+      fsynced, then copied over the original in place and fsynced, then the temporary file is
+      removed. The tradeoff: a crash during the in-place copy can leave the original part
+      written, but the complete new bytes are then still in the ``.peakproof-*.tmp`` file
+      beside it, from which the file can be restored; a rename would instead break the links.
+    - a file of link count 1 is replaced by rename (atomic).
+
+    A path that does not exist yet is created (mode from the umask, as ``open`` would).
+    """
+    real = os.path.realpath(os.fspath(path))
+    before = _writable_stat(real)
+    folder = os.path.dirname(real)
     fd, tmp = tempfile.mkstemp(prefix=".peakproof-", suffix=".tmp", dir=folder)
     try:
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
             handle.flush()
             os.fsync(handle.fileno())
-        try:
-            os.chmod(tmp, os.stat(path).st_mode & 0o7777)
-        except OSError:
-            pass
-        os.replace(tmp, path)
+        _install(tmp, real, before)
     except BaseException:
         if os.path.exists(tmp):
             os.unlink(tmp)
         raise
 
 
+def _writable_stat(real: str):
+    """``os.stat`` of the file to be rewritten (None when it does not exist); refuse read-only."""
+    try:
+        st = os.stat(real)
+    except FileNotFoundError:
+        return None
+    if not st.st_mode & 0o222:
+        raise ReadOnlyFile(f"{real} is read-only (mode {st.st_mode & 0o7777:04o}); "
+                           "nothing was written; make it writable (chmod u+w) to format it")  # fmt: skip
+    return st
+
+
+def _install(tmp: str, real: str, before) -> None:
+    """Put the complete, fsynced ``tmp`` in the place of ``real`` (see :func:`write_atomically`)."""
+    if before is not None and before.st_nlink > 1:
+        with open(tmp, "rb") as src, open(real, "r+b") as dst:
+            while chunk := src.read(1 << 20):
+                dst.write(chunk)
+            dst.truncate()
+            dst.flush()
+            os.fsync(dst.fileno())
+        os.unlink(tmp)
+        return
+    if before is not None:
+        os.chmod(tmp, before.st_mode & 0o7777)
+        try:
+            os.chown(tmp, before.st_uid, before.st_gid)
+        except PermissionError:  # not ours to give away: the caller's owner stays
+            pass
+    os.replace(tmp, real)
+    _fsync_folder(os.path.dirname(real))
+
+
+def _fsync_folder(folder: str) -> None:
+    try:
+        fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)
+
+
 def write_docx(path: str | os.PathLike, edits, expected_text: str) -> None:
-    """Rewrite only the runs the edits cover; the result is read back before it replaces ``path``."""
+    """Rewrite only the runs the edits cover; the result is read back before it replaces ``path``.
+
+    The file is put in place as :func:`write_atomically` says (symlinks written through, hard
+    links, mode and owner kept, read-only files refused).
+    """
     from .readers import read_document, write_docx_runs
 
-    path = os.fspath(path)
-    folder = os.path.dirname(os.path.abspath(path))
+    real = os.path.realpath(os.fspath(path))
+    before = _writable_stat(real)
+    folder = os.path.dirname(real)
     fd, tmp = tempfile.mkstemp(prefix=".peakproof-", suffix=".docx", dir=folder)
     os.close(fd)
     try:
-        write_docx_runs(path, tmp, edits)
+        write_docx_runs(real, tmp, edits)
         if read_document(tmp, fmt="docx").text != expected_text:
             raise UnsafeFormat("the rewritten Word file does not read back as the new text", "")
-        os.replace(tmp, path)
+        with open(tmp, "rb+") as handle:
+            os.fsync(handle.fileno())
+        _install(tmp, real, before)
     except BaseException:
         if os.path.exists(tmp):
             os.unlink(tmp)

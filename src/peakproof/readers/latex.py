@@ -27,7 +27,7 @@ from __future__ import annotations
 import re
 import unicodedata
 
-from .base import LineColumnLocator, SourceText, TextBuilder
+from .base import LineColumnLocator, ReaderError, SourceText, TextBuilder
 from .text import decode_text
 
 GREEK = {
@@ -135,10 +135,16 @@ class _LineAwareBuilder(TextBuilder):
         super()._append(text, key, src, linear)
 
 
+#: Groups, arguments and math inside one another deeper than this are refused (no data block
+#: nests more than a handful; the bound keeps the reader far from Python's recursion limit).
+MAX_NESTING = 150
+
+
 class _Converter:
     def __init__(self, src: str):
         self.src = src
         self.out = _LineAwareBuilder()
+        self.depth = 0
 
     # -- scanning helpers --------------------------------------------------------------
     def close_brace(self, i: int, end: int) -> int:
@@ -205,6 +211,18 @@ class _Converter:
 
     # -- main loop ---------------------------------------------------------------------
     def run(self, i: int, end: int, math: bool = False) -> None:
+        """Convert ``src[i:end]``; nested groups recurse, bounded by :data:`MAX_NESTING`."""
+        if self.depth >= MAX_NESTING:
+            line = self.src.count("\n", 0, i) + 1
+            raise ReaderError(f"the LaTeX nests groups more than {MAX_NESTING} deep (line {line})",
+                              "No NMR data nests so deep; remove the extra braces.")  # fmt: skip
+        self.depth += 1
+        try:
+            self._run(i, end, math)
+        finally:
+            self.depth -= 1
+
+    def _run(self, i: int, end: int, math: bool) -> None:
         src, out = self.src, self.out
         while i < end:
             if i == 0 or src[i - 1] in "\r\n":
