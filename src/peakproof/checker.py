@@ -129,8 +129,20 @@ def _run(rule, method, target, ctx, strict: bool) -> list[Diagnostic]:
 def _run_into(findings: list[Diagnostic], rule, block, ctx, strict: bool) -> None:
     """``_run`` of a block rule, its findings added to ``findings`` (all of them or none)."""
     mark = len(findings)
+    cap = ctx.config.max_findings_per_rule
     try:
-        findings.extend(rule.check(block, ctx))
+        if not cap:
+            findings.extend(rule.check(block, ctx))
+        else:
+            more, first_more = 0, None
+            for finding in rule.check(block, ctx):
+                if len(findings) - mark < cap:
+                    findings.append(finding)
+                else:
+                    more += 1
+                    first_more = first_more or finding
+            if more:
+                findings.append(_more_like_this(rule, first_more, more, cap))
     except Exception as exc:  # a rule bug must not hide the other findings
         del findings[mark:]
         if strict:
@@ -140,6 +152,16 @@ def _run_into(findings: list[Diagnostic], rule, block, ctx, strict: bool) -> Non
 
 class _FormulaSearch:  # stands for a rule in the internal-error message
     name = "formula search"
+
+
+def _more_like_this(rule, first: Diagnostic, more: int, cap: int) -> Diagnostic:
+    """The one finding that stands for the ``more`` findings of ``rule`` past the cap in a block;
+    it sits where the first of them would have been."""
+    return Diagnostic(rule=rule.name, severity=first.severity, span=first.span, code=rule.code,
+                      message=f"and {more} more like this from {rule.name} in this block, not listed "
+                              f"(at most {cap} are listed a rule and block; the setting "
+                              "max-findings-per-rule raises the limit, 0 lists all)",
+                      data={"more": more, "cap": cap})
 
 
 def _internal_error(rule, target, ctx, exc: Exception) -> Diagnostic:

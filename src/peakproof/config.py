@@ -12,6 +12,7 @@ Keys (kebab-case; ``_`` is accepted for ``-``)::
     hrms-mz = 0.003                         # or in m/z units (used instead of ppm when set)
     ea-tolerance = 0.4                      # elemental analysis, absolute %
     shift-order = "descending"              # or "either"
+    max-findings-per-rule = 20              # per rule and block; the rest become one "and N more" note
     [tool.peakproof.severity]
     coupling-no-partner = "warning"
 
@@ -49,6 +50,7 @@ class Config:
     solvent_tolerance_13c: float = 0.1
     frequency_tolerance: float = 1.0  # MHz, or 1 % of the expected value when larger
     carbon_deficit: float = 0.25  # fraction of the formula's carbons missing before a note
+    max_findings_per_rule: int = 20  # per rule and block; 0 means no cap
     formula: str | None = None
     style: Any = None  # the Style class the text is written in (form rules follow it), or None
     path: str | None = None  # the file the settings came from
@@ -153,6 +155,10 @@ def _convert(name: str, value: Any, where: str, key: str) -> Any:
         return value
     if name == "style":
         return _style_setting(value, where, bad)
+    if name == "max_findings_per_rule":
+        if isinstance(value, bool) or not isinstance(value, int) or value < 0:
+            raise bad("a whole number of findings, 0 or more (0: no cap)")
+        return value
     if name == "formula":
         if not isinstance(value, str):
             raise bad("a molecular formula such as 'C12H14O3'")

@@ -55,12 +55,17 @@ class _SecondOrder(Rule):
     high = 0.0
 
     def check(self, block, ctx):
+        cap = ctx.config.max_findings_per_rule
+        listed = 0
         for spectrum in block.spectra:
             if not spectrum.frequency_mhz:
                 continue
             for a, b, edge in _first_order_pairs(spectrum, ctx):
                 if self.low <= edge.ratio < self.high:
-                    effect = _exact_effect(a, b, edge, spectrum.frequency_mhz)
+                    listed += 1
+                    # past the checker's cap a finding is only counted: skip its simulation
+                    effect = _exact_effect(a, b, edge, spectrum.frequency_mhz) \
+                        if not cap or listed <= cap else None
                     yield self.finding(
                         b.multiplicity.span,  # pair findings point at the later-listed member
                         here=signal_label(a), there=signal_label(b), j=fmt(edge.j_hz, 2),
