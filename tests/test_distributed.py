@@ -9,9 +9,9 @@ import pytest
 pytest.importorskip("distributed")
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "benchmarks"))
 
-from generate import document  # noqa: E402  (invented compounds, fixed seed)
+from generate import document
 
-from peakproof.distributed import run_corpus  # noqa: E402
+from peakproof.distributed import run_corpus
 
 
 def _corpus(tmp_path, n=12):
