@@ -45,3 +45,37 @@ def test_local_cluster_equals_local_pool_and_resume_skips_done(tmp_path):
     again = run_corpus(files, str(dask_out), engine="local", jobs=1, batch_size=5)
     assert again["skipped"] == again["batches"] - 1
     assert _records(dask_out) == _records(local)
+
+
+def test_dask_scheduler_and_worker_processes_on_loopback(tmp_path):
+    import subprocess
+    import time
+
+    files = _corpus(tmp_path, n=6)
+    local = tmp_path / "local"
+    run_corpus(files, str(local), engine="local", jobs=1, batch_size=4)
+    bindir = os.path.dirname(sys.executable)
+    dask = os.path.join(bindir, "dask")
+    sched_file = tmp_path / "scheduler.json"
+    env = {**os.environ, "PYTHONPATH": os.pathsep.join(sys.path)}
+    sched = subprocess.Popen([dask, "scheduler", "--host", "127.0.0.1", "--port", "0",
+                              "--dashboard-address", ":0", "--scheduler-file", str(sched_file)],
+                             env=env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)  # fmt: skip
+    worker = None
+    try:
+        for _ in range(200):
+            if sched_file.exists() and sched_file.stat().st_size:
+                break
+            time.sleep(0.1)
+        address = json.loads(sched_file.read_text())["address"]
+        worker = subprocess.Popen([dask, "worker", address, "--nworkers", "1", "--nthreads", "1",
+                                   "--host", "127.0.0.1"], env=env,
+                                  stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)  # fmt: skip
+        out = tmp_path / "remote"
+        run_corpus(files, str(out), engine="dask", scheduler=address, batch_size=4)
+        assert _records(out) == _records(local)
+    finally:
+        for proc in (worker, sched):
+            if proc is not None:
+                proc.terminate()
+                proc.wait(timeout=30)
