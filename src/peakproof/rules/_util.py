@@ -93,10 +93,14 @@ def percentages(formula_text: str):
     return mass_percentages(formula(formula_text))
 
 
+#: Caches of rule modules that :func:`clear_caches` empties too (each module adds its own, so
+#: this module needs to import none of them).
+RULE_CACHES: list = []
+
+
 def clear_caches() -> None:
     """Forget parsed formulas and their masses (benchmarks measure a cold start with this)."""
     from ..masses import _monoisotopic
-    from .mass_spec import _intended_ion
 
-    for cached in (formula, ion_type, neutral_of, percentages, _intended_ion, _monoisotopic):
+    for cached in (formula, ion_type, neutral_of, percentages, _monoisotopic, *RULE_CACHES):
         cached.cache_clear()

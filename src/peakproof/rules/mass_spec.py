@@ -77,6 +77,9 @@ def _fits_written_formula(ms, decimals: int, z: int) -> bool:
         return False
 
 
+_util.RULE_CACHES.append(_intended_ion)
+
+
 class HrmsCalcd(Rule):
     """The calculated m/z must be the ion formula's monoisotopic mass minus z electrons, over |z|."""
 
