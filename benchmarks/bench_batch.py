@@ -102,8 +102,13 @@ def measure(n_files: int, jobs: int, worker_name: str) -> dict:
     """One size, in this process: generate, run, report."""
     import resource
 
-    from peakproof.batch import (BatchSummary, JsonLinesWriter, check_worker, export_worker,
-                                 run_batch)  # fmt: skip
+    from peakproof.batch import (
+        BatchSummary,
+        JsonLinesWriter,
+        check_worker,
+        export_worker,
+        run_batch,  # fmt: skip
+    )
 
     worker = check_worker if worker_name == "check" else export_worker
     with tempfile.TemporaryDirectory(prefix="peakproof-bench-") as tmp:

@@ -2,9 +2,12 @@
 
 Issue 14 asks for at most 2x. Run: PYTHONPATH=src python benchmarks/bench_structures.py
 """
-import time, peakproof
+import time
+
+import peakproof
 from peakproof.checker import check_document
-smis = ["CCOC(=O)c1ccc(%s)cc1" % s for s in ("C","CC","OC","F","Cl","Br","CCC","C(C)C","N","O")]
+
+smis = [f"CCOC(=O)c1ccc({s})cc1" for s in ("C","CC","OC","F","Cl","Br","CCC","C(C)C","N","O")]
 def doc(with_s):
     parts=[]
     for i in range(1000):

@@ -5,7 +5,6 @@ from __future__ import annotations
 import re
 
 import pytest
-
 from corpus import load_corpus, project
 from corpus.damage import REPAIRED_KINDS, damage
 

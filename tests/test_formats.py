@@ -9,7 +9,7 @@ paragraphs through python-docx, its PDF glyphs through pdfplumber), not through 
 from __future__ import annotations
 
 import statistics
-from functools import lru_cache
+from functools import cache
 from pathlib import Path
 
 import pytest
@@ -23,7 +23,7 @@ TWINS = ["demo_si.md", "demo_si.tex", "demo_si.docx", "demo_si.pdf", "demo_si-da
 CHOSEN = [("1a", "7.97 (dd"), ("6", "7.39 (d"), ("13", "9.81 (t")]
 
 
-@lru_cache(maxsize=None)
+@cache
 def parsed(name: str):
     return parse_path(str(EXAMPLES / name))
 

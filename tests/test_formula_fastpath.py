@@ -1,6 +1,7 @@
 """Plain element-count formulas are read without the grammar; both readings agree."""
 
-from hypothesis import given, strategies as st
+from hypothesis import given
+from hypothesis import strategies as st
 
 import peakproof.formula as F
 

@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
+from corpus import project
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
-
-from corpus import project
 from strategies import blocks, mutated_blocks
 
 SETTINGS = settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])

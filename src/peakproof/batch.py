@@ -29,8 +29,9 @@ import os
 import sys
 import time
 from collections import Counter, deque
+from collections.abc import Callable, Iterable, Iterator
 from dataclasses import dataclass, field
-from typing import IO, Any, Callable, Iterable, Iterator
+from typing import IO, Any
 
 from .readers import EXTENSIONS
 
@@ -169,7 +170,7 @@ def _walk(folder: str, recursive: bool) -> Iterator[str]:
 
 
 def run_batch(files: Iterable[str], worker: Callable[[str], dict], jobs: int = 1,
-              progress: "ProgressBar | None" = None, *, window: int | None = None,
+              progress: ProgressBar | None = None, *, window: int | None = None,
               mp_context=None) -> Iterator[dict]:  # fmt: skip
     """Yield ``worker(path)`` for each file, in input order, using ``jobs`` processes.
 
@@ -365,7 +366,7 @@ class JsonLinesWriter:
         self.stream.write(json.dumps(obj, ensure_ascii=False) + "\n")
         self.lines += 1
 
-    def __enter__(self) -> "JsonLinesWriter":
+    def __enter__(self) -> JsonLinesWriter:
         return self
 
     def __exit__(self, *exc) -> None:
@@ -416,7 +417,7 @@ class ProgressBar:
             self.stream.flush()
             self._shown = False
 
-    def __enter__(self) -> "ProgressBar":
+    def __enter__(self) -> ProgressBar:
         return self
 
     def __exit__(self, *exc) -> None:

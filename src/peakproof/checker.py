@@ -8,14 +8,14 @@ severity overrides come from :class:`~peakproof.config.Config`.
 
 from __future__ import annotations
 
-
 from typing import Any
 
 from .collector import collector_paused
 from .config import Config
 from .formula import FormulaError
 from .masses import formula_is_neutral_then_ion
-from .rules._util import formula as parse_formula, neutral_of as neutral_from_ion
+from .rules._util import formula as parse_formula
+from .rules._util import neutral_of as neutral_from_ion
 from .span import Diagnostic, LineIndex
 
 _SEVERITY_RANK = {"error": 0, "warning": 1, "note": 2}

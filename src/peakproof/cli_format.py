@@ -70,9 +70,9 @@ _SAMPLE = ("1H NMR (400 MHz, CDCl3) δ 1.25 (t, J = 7.1 Hz, 3H), 4.12 (q, J = 7.
 
 
 def _run_styles(args) -> int:
+    from . import parse
     from .emit import Emitter
     from .styles import BUILTIN, StyleError, find_project_style, load_style_file
-    from . import parse
 
     styles = dict(BUILTIN)
     try:
@@ -97,10 +97,9 @@ def _run_styles(args) -> int:
 # ---- export ------------------------------------------------------------------------------
 def _run_export(args) -> int:
     from .api import InputError, parse_path
+    from .batch import names_several
     from .export import export
     from .safety import ReadOnlyFile, write_atomically
-
-    from .batch import names_several
 
     batch = args.jobs != 1 or names_several(args.files)
     if batch and args.to == "jsonl":

@@ -73,12 +73,12 @@ def _compound_before(before: str) -> _Found | None:
         if before[m.start() : m.end()].lstrip().startswith("#"):
             return _titled(title, m.start("title"))
     word = None
-    for word in _COMPOUND_WORD.finditer(before):
+    for word in _COMPOUND_WORD.finditer(before):  # noqa: B007 (the last match is the one wanted)
         pass
     if word:
         return _Found(word.group("label"), word.start("label"), word.end("label"))
     sentence = None
-    for sentence in _LABEL_IN_SENTENCE.finditer(before):
+    for sentence in _LABEL_IN_SENTENCE.finditer(before):  # noqa: B007 (the last match is wanted)
         pass
     if sentence:
         formula = sentence.group("inner") or sentence.group("after")

@@ -56,7 +56,7 @@ class Config:
     path: str | None = None  # the file the settings came from
     problems: tuple[str, ...] = ()  # unknown keys and similar, for the user
 
-    def with_overrides(self, **changes: Any) -> "Config":
+    def with_overrides(self, **changes: Any) -> Config:
         return replace(self, **{k: v for k, v in changes.items() if v is not None})
 
 

@@ -10,7 +10,8 @@ from __future__ import annotations
 import csv
 import io
 import json
-from typing import Any, Iterable
+from collections.abc import Iterable
+from typing import Any
 
 from .model import Document, Signal, Spectrum
 

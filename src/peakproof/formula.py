@@ -13,10 +13,9 @@ labelled compound has one spelling.  A few group abbreviations that are not elem
 
 from __future__ import annotations
 
-from functools import lru_cache
-
 import re
 from collections.abc import Iterable, Mapping
+from functools import lru_cache
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any

@@ -17,8 +17,9 @@ Pure Python: numpy is imported only by :func:`simulation_to_jcamp`.
 from __future__ import annotations
 
 import re
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Iterable, Sequence
+from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:  # pragma: no cover
     from peakproof.simulate import Simulation
@@ -175,7 +176,7 @@ def _floor_log10(value: float) -> int:
 
 
 def simulation_to_jcamp(
-    simulation: "Simulation",
+    simulation: Simulation,
     *,
     width_hz: float = 1.0,
     points: int = 16384,

@@ -10,7 +10,6 @@ window, no global backend change).
 
 from __future__ import annotations
 
-
 INK = "#1d2540"
 FIRST_ORDER = "#d1495b"
 INTEGRAL = "#5b6b7a"
@@ -213,7 +212,7 @@ def _draw_labels(ax, x, y, regions, ppm_per_inch) -> None:
     if not regions:
         return
     anchors, tops = [], []
-    for signal, low, high, inside in regions:
+    for signal, _low, _high, inside in regions:
         anchors.append(signal.shift_ppm)
         tops.append(float(y[inside].max()) if inside.any() else 0.0)
     step = LABEL_SIZE * 1.55 / 72 * ppm_per_inch  # one rotated line of text, in ppm

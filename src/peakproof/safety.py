@@ -396,8 +396,8 @@ def verify_markup(
     text before, or after --fix the fixed text) under the allowed changes; a second format
     pass may change only what was left as written.
     """
-    from .parsing import parse
     from .emit import apply_edits
+    from .parsing import parse
     from .readers import read_document
 
     expected = apply_edits(text, placement.accepted)

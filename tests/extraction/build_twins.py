@@ -156,8 +156,8 @@ def run(args: list[str]) -> str:
 
 def extract_all(pdf: Path) -> dict[str, str]:
     """Every extractor's text of ``pdf`` (name → text)."""
-    from pdfminer.high_level import extract_text
     import pypdfium2 as pdfium
+    from pdfminer.high_level import extract_text
 
     out = {"pdftotext": run(["pdftotext", str(pdf), "-"]),
            "pdftotext-layout": run(["pdftotext", "-layout", str(pdf), "-"]),

@@ -141,7 +141,7 @@ def test_reader_error_is_a_value_error_with_a_readable_message():
 def test_limits_from_the_environment(tmp_path):
     """PEAKPROOF_MAX_FILE_MB and friends raise or lower a limit for every command."""
     from peakproof.cli import main
-    from peakproof.readers.limits import MiB, Limits
+    from peakproof.readers.limits import Limits, MiB
 
     limits = Limits.from_environment({"PEAKPROOF_MAX_FILE_MB": "1", "PEAKPROOF_MAX_PAGES": "3"})
     assert (1 * MiB, 3) == (limits.max_bytes, limits.max_pages)

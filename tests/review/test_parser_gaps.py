@@ -4,7 +4,6 @@ Each test states the input as an author writes it and the reading a chemist mean
 
 from __future__ import annotations
 
-
 from peakproof import parse
 
 

@@ -5,8 +5,7 @@ from math import comb
 import pytest
 from numpy.polynomial import polynomial
 
-from peakproof.simulate import SpinGroup, SpinSystem, SpinSystemError, first_order_spectrum
-from peakproof.simulate import m_distribution, multiplet
+from peakproof.simulate import SpinGroup, SpinSystem, SpinSystemError, first_order_spectrum, m_distribution, multiplet
 
 
 def _relative(lines):

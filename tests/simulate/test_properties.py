@@ -39,7 +39,7 @@ def _assert_same_lines(a, b, window_hz=1e-3):
     Summing within a window keeps the check blind to how near-coincident lines were merged.
     """
     for mine, theirs in ((a, b), (b, a)):
-        for freq, intensity in mine[mine[:, 1] > 1e-5]:
+        for freq, _intensity in mine[mine[:, 1] > 1e-5]:
             near_mine = mine[np.abs(mine[:, 0] - freq) < window_hz, 1].sum()
             near_theirs = theirs[np.abs(theirs[:, 0] - freq) < window_hz, 1].sum()
             assert abs(near_mine - near_theirs) < 1e-6, (freq, near_mine, near_theirs)

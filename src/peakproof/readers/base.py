@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import re
 from bisect import bisect_right
-from typing import Any, Callable, Hashable, NamedTuple
+from collections.abc import Callable, Hashable
+from typing import Any, NamedTuple
 
 from ..records import compared_by_class
 

@@ -23,8 +23,8 @@ import io
 import os
 import tempfile
 import zipfile
+from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
-from typing import Iterable, Iterator
 
 from .base import Location, ReaderError, SourceText, TextBuilder
 from .limits import Limits, check_zip

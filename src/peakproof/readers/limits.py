@@ -31,7 +31,7 @@ class Limits(NamedTuple):
     max_seconds: float = 60.0
 
     @classmethod
-    def from_environment(cls, environ=None) -> "Limits":
+    def from_environment(cls, environ=None) -> Limits:
         """Defaults, overridden by ``PEAKPROOF_MAX_FILE_MB``, ``PEAKPROOF_MAX_UNCOMPRESSED_MB``,
         ``PEAKPROOF_MAX_COMPRESSION_RATIO``, ``PEAKPROOF_MAX_PAGES`` and ``PEAKPROOF_MAX_SECONDS``
         (so every command and the web page share one way of raising a limit)."""
@@ -59,7 +59,7 @@ class Limits(NamedTuple):
                 name,
             )
 
-    def deadline(self, name: str = "") -> "Deadline":
+    def deadline(self, name: str = "") -> Deadline:
         return Deadline(self.max_seconds, name)
 
 
@@ -145,8 +145,8 @@ def check_zip(source: str | os.PathLike | bytes, limits: Limits, name: str = "")
 def _inflate_within_claims(source, members, limits: Limits, name: str) -> None:
     """Inflate every member in bounded chunks and stop if it yields more than its entry
     claims: zipfile would inflate a lying member whole before noticing."""
-    import zipfile
     import struct
+    import zipfile
     handle = io.BytesIO(source) if isinstance(source, bytes) else open(source, "rb")
     chunk = 256 * 1024
     total = 0

@@ -15,8 +15,9 @@ from __future__ import annotations
 
 import difflib
 import importlib
+from collections.abc import Iterable, Iterator
 from dataclasses import dataclass, field
-from typing import Any, ClassVar, Iterable, Iterator
+from typing import Any, ClassVar
 
 from ..span import Diagnostic, Span
 
@@ -39,8 +40,8 @@ FAMILIES = (
 )
 
 #: rule name → rule class, in registration order
-REGISTRY: dict[str, type["Rule"]] = {}
-_BY_CODE: dict[str, type["Rule"]] = {}
+REGISTRY: dict[str, type[Rule]] = {}
+_BY_CODE: dict[str, type[Rule]] = {}
 
 
 class RuleDefinitionError(TypeError):
@@ -87,10 +88,10 @@ class Rule:
     def __init__(self, severity: str | None = None):
         self.effective_severity = severity or self.severity
 
-    def check(self, block, ctx: "Context") -> Iterator[Diagnostic]:  # pragma: no cover - abstract
+    def check(self, block, ctx: Context) -> Iterator[Diagnostic]:  # pragma: no cover - abstract
         return iter(())
 
-    def check_document(self, document, ctx: "Context") -> Iterator[Diagnostic]:
+    def check_document(self, document, ctx: Context) -> Iterator[Diagnostic]:
         return iter(())
 
     def finding(

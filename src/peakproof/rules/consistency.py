@@ -4,7 +4,8 @@ from __future__ import annotations
 
 from ..formula import FormulaError
 from . import Rule
-from ._util import formula as parse_formula, neutral_of as neutral_from_ion
+from ._util import formula as parse_formula
+from ._util import neutral_of as neutral_from_ion
 
 
 class FormulaMismatch(Rule):

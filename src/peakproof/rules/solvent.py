@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
-from bisect import bisect_left, bisect_right
-
 import functools
 import re
+from bisect import bisect_left, bisect_right
 from typing import Any, NamedTuple
 
 from . import Rule

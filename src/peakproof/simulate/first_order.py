@@ -7,7 +7,7 @@ triangle for spin ½; 1:1:1, 1:2:3:2:1, … for deuterium) — common practice.
 
 from __future__ import annotations
 
-from typing import Iterable, Sequence
+from collections.abc import Iterable, Sequence
 
 from .spin_system import (
     Line,

@@ -6,7 +6,7 @@ intensity, so equal-width lines keep their areas in proportion to their intensit
 
 from __future__ import annotations
 
-from typing import Iterable
+from collections.abc import Iterable
 
 import numpy as np
 

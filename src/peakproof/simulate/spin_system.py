@@ -7,9 +7,9 @@ constants between groups, in Hz.  Nothing here needs numpy.
 
 from __future__ import annotations
 
+from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 from fractions import Fraction
-from typing import Iterable, Mapping
 
 # Nuclear spins used when peakproof.nuclei is not available (common practice, from memory;
 # the nuclei module carries the cited table).
@@ -180,7 +180,7 @@ class SpinSystem:
         }
         return _components(members, edges)
 
-    def subsystem(self, indices: Iterable[int]) -> tuple["SpinSystem", list[int]]:
+    def subsystem(self, indices: Iterable[int]) -> tuple[SpinSystem, list[int]]:
         """The system restricted to ``indices``, and the original index of each new group."""
         kept = sorted(set(indices))
         position = {old: new for new, old in enumerate(kept)}
@@ -193,7 +193,7 @@ class SpinSystem:
                          self.nucleus)
         return sub, kept
 
-    def reordered(self, order: Iterable[int]) -> "SpinSystem":
+    def reordered(self, order: Iterable[int]) -> SpinSystem:
         """The same system with its groups listed in ``order`` (a permutation)."""
         order = list(order)
         if sorted(order) != list(range(len(self.groups))):
