@@ -12,6 +12,7 @@ import io
 import functools
 import os
 import re
+import secrets
 import threading
 from typing import Any
 
@@ -62,18 +63,59 @@ class BadInput(Exception):
     """A request the page can explain: answered 400 with ``str()`` as the message."""
 
 
+TOKEN_HEADER = "X-Peakproof-Token"
+_TOKEN_SLOT = "{{PEAKPROOF_TOKEN}}"
+_LOOPBACK_NAMES = ("localhost", "127.0.0.1", "[::1]")
+
+
 def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
-    """The Flask application; requests above ``max_request_mb`` megabytes get a 413."""
+    """The Flask application; requests above ``max_request_mb`` megabytes get a 413.
+
+    Closed to other sites: a request whose ``Host`` is not a loopback name is refused (403), and
+    once :func:`allow_hosts` has named the server's own ``host:port`` only those are accepted,
+    against DNS rebinding.  Every POST must come from this page: a foreign ``Origin`` or a
+    ``Sec-Fetch-Site`` other than ``same-origin``/``none`` is refused, and the per-session token
+    (``app.config["PEAKPROOF_TOKEN"]``, written into the page) must come in ``X-Peakproof-Token``.
+    """
     app = Flask(__name__, static_folder=None)
+    app.config["PEAKPROOF_TOKEN"] = secrets.token_urlsafe(24)
+    app.config["PEAKPROOF_HOSTS"] = None  # None: any loopback name, any port
     app.request_class = InMemoryRequest
     app.config["MAX_CONTENT_LENGTH"] = int(max_request_mb * 1024 * 1024)
     app.config["MAX_FORM_MEMORY_SIZE"] = int(max_request_mb * 1024 * 1024)
     app.json.ensure_ascii = False
     app.json.sort_keys = False
 
+    @app.before_request
+    def closed_to_other_sites():
+        host = (request.host or "").lower()
+        allowed = app.config["PEAKPROOF_HOSTS"]
+        name = host.rsplit(":", 1)[0] if not host.endswith("]") else host
+        if (host not in allowed) if allowed is not None else (name not in _LOOPBACK_NAMES):
+            return _error(403, f"this page answers only at its own address "
+                          f"({', '.join(sorted(allowed or _LOOPBACK_NAMES))}), not at "
+                          f"'{host}'; open the address 'peakproof serve' printed")
+        if request.method != "POST":
+            return None
+        origin = request.headers.get("Origin")
+        if origin is not None and origin.lower() != f"{request.scheme}://{host}":
+            return _error(403, f"requests from another site ({origin}) are refused; use the "
+                          "page itself")
+        fetch_site = request.headers.get("Sec-Fetch-Site")
+        if fetch_site is not None and fetch_site not in ("same-origin", "none"):
+            return _error(403, "requests from another site are refused; use the page itself")
+        sent = request.headers.get(TOKEN_HEADER, "")
+        if not secrets.compare_digest(sent.encode(), app.config["PEAKPROOF_TOKEN"].encode()):
+            return _error(403, "this request lacks the page's session token (the server may "
+                          "have been restarted): reload the page and try again")
+        return None
+
     @app.get("/")
     def index():
-        return _static_file("index.html")
+        with open(os.path.join(_STATIC, "index.html"), encoding="utf-8") as handle:
+            page = handle.read().replace(_TOKEN_SLOT, app.config["PEAKPROOF_TOKEN"])
+        return app.response_class(page, mimetype="text/html",
+                                  headers={"Cache-Control": "no-store"})  # fmt: skip
 
     @app.get("/favicon.ico")
     def favicon():
@@ -152,6 +194,17 @@ def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
         return _error(exc.code or 500, exc.description or exc.name)
 
     return app
+
+
+def allow_hosts(app: Flask, host: str, port: int) -> None:
+    """Accept only ``host:port`` (and, for a loopback host, the other loopback names at that
+    port) as the request's ``Host`` from now on."""
+    host = host.lower()
+    shown = f"[{host.strip('[]')}]" if ":" in host else host
+    names = {shown}
+    if shown in _LOOPBACK_NAMES or shown.startswith("127."):
+        names |= set(_LOOPBACK_NAMES)
+    app.config["PEAKPROOF_HOSTS"] = {f"{n}:{port}" for n in names}
 
 
 def _static_file(name: str):

@@ -28,10 +28,13 @@
     $("alert").textContent = "";
   }
 
+  // the per-session token the server wrote into the page; every POST carries it
+  const TOKEN = document.querySelector('meta[name="peakproof-token"]').content;
+
   async function postJSON(url, body) {
     const response = await fetch(url, {
       method: "POST",
-      headers: { "Content-Type": "application/json" },
+      headers: { "Content-Type": "application/json", "X-Peakproof-Token": TOKEN },
       body: JSON.stringify(body),
     });
     return readAnswer(response);
@@ -368,7 +371,7 @@
     try {
       const response = await fetch("/api/plot", {
         method: "POST",
-        headers: { "Content-Type": "application/json" },
+        headers: { "Content-Type": "application/json", "X-Peakproof-Token": TOKEN },
         body: JSON.stringify({ text: state.text, block: compound.block }),
       });
       if (!response.ok) await readAnswer(response);
@@ -417,7 +420,9 @@
     const form = new FormData();
     form.append("file", file);
     try {
-      const response = await fetch("/api/upload", { method: "POST", body: form });
+      const response = await fetch("/api/upload", {
+        method: "POST", headers: { "X-Peakproof-Token": TOKEN }, body: form,
+      });
       const payload = await readAnswer(response);
       $("input").value = payload.text;
       $("file-name").textContent = `${payload.name} (${payload.format})`;
