@@ -207,6 +207,18 @@ def test_malformed_json_is_a_400_with_a_message(client, endpoint, body, content_
     assert words in response.get_json()["error"]
 
 
+@pytest.mark.parametrize("endpoint", ["/api/check", "/api/format", "/api/plot"])
+@pytest.mark.parametrize("opening, closing", [("[", "]"), ('{"a":', "}")])
+def test_deeply_nested_json_is_a_400_with_a_message(client, endpoint, opening, closing):
+    depth = 100_000  # far past Python's recursion limit (1000 by default)
+    body = '{"text": ' + opening * depth + "1" + closing * depth + "}"
+    response = client.post(endpoint, data=body, content_type="application/json")
+    assert response.status_code == 400
+    assert "nested too deeply" in response.get_json()["error"]
+    # and the server still answers normally afterwards
+    assert client.post(endpoint, json={"text": "1H NMR δ 7.26 (s, 1H)"}).status_code == 200
+
+
 def test_wrong_method_is_refused_as_json(client):
     response = client.get("/api/check")
     assert response.status_code == 405

@@ -44,7 +44,7 @@ def _body(route):
         boundary = "peakproofboundary"
         data = (f"--{boundary}\r\nContent-Disposition: form-data; name=\"file\"; "
                 f"filename=\"si.txt\"\r\nContent-Type: text/plain\r\n\r\n{TEXT}\r\n"
-                f"--{boundary}--\r\n").encode("utf-8")  # fmt: skip
+                f"--{boundary}--\r\n").encode()  # fmt: skip
         return data, f"multipart/form-data; boundary={boundary}"
     return json.dumps({"text": TEXT, "block": 0}).encode("utf-8"), "application/json"
 

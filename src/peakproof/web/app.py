@@ -222,7 +222,12 @@ def _json_body() -> dict[str, Any]:
     if not request.is_json:
         raise BadInput("send JSON (Content-Type: application/json), "
                        "e.g. {\"text\": \"1H NMR …\"}")
-    body = request.get_json(silent=True)
+    try:
+        body = request.get_json(silent=True)
+    except RecursionError:
+        # json's decoder recurses once per level; thousands of nested [ or { exhaust the stack
+        raise BadInput("the request's JSON is nested too deeply to read; send a flat object "
+                       "such as {\"text\": \"1H NMR …\"}") from None
     if body is None:
         raise BadInput("the request is not valid JSON")
     if not isinstance(body, dict):
