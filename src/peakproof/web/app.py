@@ -37,18 +37,43 @@ _PARSER_RATIONALE = {
 }
 
 
-#: The parser keeps state between calls, so two requests must not parse at once: the server
-#: is threaded for the page's files, but engine work takes turns.
-_ENGINE_LOCK = threading.Lock()
+#: Parsing and checking are re-entrant (tests/test_parse_threads.py), so requests run at once.
+#: Matplotlib's font cache and settings are process-wide: only the drawing takes turns.
+_PLOT_LOCK = threading.Lock()
+#: Seconds a request may compute before the page is told to use the command line instead.
+TIME_BUDGET_S = 20.0
+_BUDGET_POOL = None
+_BUDGET_POOL_LOCK = threading.Lock()
+
+
+class TooLarge(Exception):
+    """Work that ran past :data:`TIME_BUDGET_S`: answered 413 with advice to use the CLI."""
 
 
 def _one_at_a_time(function):
-    @functools.wraps(function)
-    def locked(*args, **kwargs):
-        with _ENGINE_LOCK:
-            return function(*args, **kwargs)
+    """Run ``function`` within the request's time budget (the name is kept for history: calls
+    no longer wait for each other).  Past the budget the caller gets :class:`TooLarge`; the
+    abandoned work finishes in its pool thread and its result is dropped."""
 
-    return locked
+    @functools.wraps(function)
+    def budgeted(*args, **kwargs):
+        global _BUDGET_POOL
+        from concurrent.futures import ThreadPoolExecutor
+        from concurrent.futures import TimeoutError as FutureTimeout
+
+        with _BUDGET_POOL_LOCK:
+            if _BUDGET_POOL is None:
+                _BUDGET_POOL = ThreadPoolExecutor(max_workers=8,
+                                                  thread_name_prefix="peakproof-web")  # fmt: skip
+        future = _BUDGET_POOL.submit(function, *args, **kwargs)
+        try:
+            return future.result(timeout=TIME_BUDGET_S)
+        except FutureTimeout:
+            raise TooLarge(f"this text is too large for the page (not done within "
+                           f"{TIME_BUDGET_S:g} s); use the command line instead, e.g. "
+                           "'peakproof check FILE' or 'peakproof format FILE'") from None
+
+    return budgeted
 
 
 class InMemoryRequest(Request):
@@ -183,6 +208,10 @@ def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
     @app.errorhandler(BadInput)
     def bad_input(exc):
         return _error(400, str(exc))
+
+    @app.errorhandler(TooLarge)
+    def too_slow(exc):
+        return _error(413, str(exc))
 
     @app.errorhandler(RequestEntityTooLarge)
     def too_large(exc):
@@ -375,15 +404,49 @@ def format_text(text: str, style_name: str | None, round_numbers: bool = False) 
 _TOKEN = re.compile(r"\s+|[\w.,]+|[^\w\s]", re.UNICODE)
 
 
+#: Beyond these the Changes tab shows whole lines (or stops) instead of finer detail.
+WORD_DIFF_MAX_TOKENS = 3000  # tokens in one line, either side
+LINE_MATCH_MAX_PAIRS = 4_000_000  # lines before × lines after in one changed stretch
+DIFF_MAX_ROWS = 2000
+
+
 def line_diff(before: str, after: str) -> list[dict[str, Any]]:
-    """Changed lines, each with word-level parts: ``{"op": "equal"|"del"|"ins", "text"}``."""
+    """Changed lines, each with word-level parts: ``{"op": "equal"|"del"|"ins", "text"}``.
+
+    The cost follows the size of the change: unchanged lines at both ends are cut off first,
+    a stretch with as many lines before as after is paired line by line, only a changed line
+    is split into words (and only when short enough, else shown whole), and after
+    :data:`DIFF_MAX_ROWS` rows a last row with ``"op": "cut"`` says how much was left out.
+    """
     a, b = before.split("\n"), after.split("\n")
+    head = 0
+    while head < min(len(a), len(b)) and a[head] == b[head]:
+        head += 1
+    tail = 0
+    while tail < min(len(a), len(b)) - head and a[-1 - tail] == b[-1 - tail]:
+        tail += 1
+    mid_a, mid_b = a[head : len(a) - tail], b[head : len(b) - tail]
+    if len(mid_a) == len(mid_b):
+        opcodes = [("replace", head + k, head + k + 1, head + k, head + k + 1)
+                   for k in range(len(mid_a)) if mid_a[k] != mid_b[k]]  # fmt: skip
+    elif len(mid_a) * len(mid_b) <= LINE_MATCH_MAX_PAIRS:
+        matcher = difflib.SequenceMatcher(None, mid_a, mid_b, autojunk=False)
+        opcodes = [(t, i1 + head, i2 + head, j1 + head, j2 + head)
+                   for t, i1, i2, j1, j2 in matcher.get_opcodes()]  # fmt: skip
+    else:
+        opcodes = [("replace", head, len(a) - tail, head, len(b) - tail)]
     rows: list[dict[str, Any]] = []
-    for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, a, b, autojunk=False).get_opcodes():
+    changed = sum(max(i2 - i1, j2 - j1) for t, i1, i2, j1, j2 in opcodes if t != "equal")
+    for tag, i1, i2, j1, j2 in opcodes:
         if tag == "equal":
             continue
         pairs = max(i2 - i1, j2 - j1)
         for k in range(pairs):
+            if len(rows) == DIFF_MAX_ROWS:
+                rows.append({"line": None, "parts": [{"op": "cut", "text":
+                    f"{changed - DIFF_MAX_ROWS} more changed lines are not shown here; "
+                    "the reformatted text above has them all"}]})  # fmt: skip
+                return rows
             old = a[i1 + k] if i1 + k < i2 else None
             new = b[j1 + k] if j1 + k < j2 else None
             rows.append({
@@ -399,6 +462,8 @@ def _word_parts(old: str | None, new: str | None) -> list[dict[str, str]]:
     if new is None:
         return [{"op": "del", "text": old}]
     x, y = _TOKEN.findall(old), _TOKEN.findall(new)
+    if max(len(x), len(y)) > WORD_DIFF_MAX_TOKENS:  # word matching is quadratic: whole lines
+        return _trim_common(old, new)
     parts: list[dict[str, str]] = []
     for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, x, y, autojunk=False).get_opcodes():
         if tag == "equal":
@@ -506,7 +571,9 @@ def _render_block_png(doc, block) -> bytes:
                 panels.append((title, simulate_implied(implied, "quantum"),
                                simulate_implied(implied, "first-order")))  # fmt: skip
         out = io.BytesIO()
-        plot_spectra(panels, out, width_px=PLOT_WIDTH_PX, height_px=PLOT_HEIGHT_PX * len(panels))
+        with _PLOT_LOCK:
+            plot_spectra(panels, out, width_px=PLOT_WIDTH_PX,
+                         height_px=PLOT_HEIGHT_PX * len(panels))
     except (PlotError, SpinSystemError) as exc:
         raise BadInput(f"the spectrum of {title} cannot be drawn: {exc}") from None
     return out.getvalue()

@@ -315,6 +315,7 @@
       const body = el("span", "diff-text");
       for (const part of row.parts) {
         if (part.op === "equal") body.append(document.createTextNode(part.text));
+        else if (part.op === "cut") body.append(el("em", "diff-cut", part.text));
         else body.append(el(part.op === "del" ? "del" : "ins", "", part.text));
       }
       line.append(body);
