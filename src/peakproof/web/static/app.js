@@ -82,6 +82,7 @@
       state.analysis = analysis;
       state.text = text;
       state.selected = null;
+      markStale();
       renderTotals();
       renderCompounds();
       renderMarked();
@@ -284,8 +285,22 @@
     $("style-description").textContent = chosen ? chosen.description : "";
   }
 
+  // Results belong to the text of the last check; once the box differs they are marked out of
+  // date and Copy is off, so nobody copies a mistake they have already fixed.
+  function markStale() {
+    const stale = Boolean(state.analysis) && $("input").value !== state.text;
+    document.body.classList.toggle("stale", stale);
+    $("stale-note").hidden = !stale;
+    $("copy-button").disabled = stale;
+    if (stale) $("copy-status").textContent = "";
+  }
+
   async function runFormat() {
     if (!state.analysis) return;
+    if ($("input").value !== state.text) {  // another style for edited text: check it first
+      await runCheck();
+      return;
+    }
     describeStyle();
     $("copy-status").textContent = "";
     try {
@@ -367,8 +382,12 @@
                                     : "Choose a compound with 1H NMR data.";
       return;
     }
+    // the last compound's plot must not stay under the new heading while this one loads
+    img.hidden = true;
+    img.removeAttribute("src");
     status.hidden = false;
     status.textContent = "Simulating…";
+    const request = (state.plotRequest = (state.plotRequest || 0) + 1);
     try {
       const response = await fetch("/api/plot", {
         method: "POST",
@@ -377,6 +396,7 @@
       });
       if (!response.ok) await readAnswer(response);
       const blob = await response.blob();
+      if (request !== state.plotRequest) return;  // a newer plot was asked for meanwhile
       if (state.plotUrl) URL.revokeObjectURL(state.plotUrl);
       state.plotUrl = URL.createObjectURL(blob);
       img.alt = `Simulated 1H NMR spectrum of ${compound.label}`;
@@ -384,6 +404,7 @@
       img.hidden = false;
       status.hidden = true;
     } catch (error) {
+      if (request !== state.plotRequest) return;
       img.hidden = true;
       status.textContent = `Could not draw the spectrum: ${error.message}`;
     }
@@ -442,6 +463,7 @@
       if (event.key === "Enter" && (event.ctrlKey || event.metaKey)) runCheck();
     });
     $("file-input").addEventListener("change", openFile);
+    $("input").addEventListener("input", markStale);
     $("style-select").addEventListener("change", runFormat);
     $("copy-button").addEventListener("click", copyResult);
     $("tab-result").addEventListener("click", () => showTab("result"));
