@@ -9,14 +9,22 @@ import urllib.request
 
 import pytest
 
-from peakproof.web import create_app, is_loopback, make_server
+from peakproof.web import TOKEN_HEADER, create_app, is_loopback, make_server
 
 from .demo import DEMO_DOCX, demo_text, planted_ranges
 
 
+def page_client(app):
+    """A test client that sends the page's session token, as the page's script does."""
+    client = app.test_client()
+    client.environ_base["HTTP_" + TOKEN_HEADER.upper().replace("-", "_")] = app.config[
+        "PEAKPROOF_TOKEN"]
+    return client
+
+
 @pytest.fixture(scope="module")
 def client():
-    return create_app().test_client()
+    return page_client(create_app())
 
 
 @pytest.fixture(scope="module")
@@ -199,6 +207,18 @@ def test_malformed_json_is_a_400_with_a_message(client, endpoint, body, content_
     assert words in response.get_json()["error"]
 
 
+@pytest.mark.parametrize("endpoint", ["/api/check", "/api/format", "/api/plot"])
+@pytest.mark.parametrize("opening, closing", [("[", "]"), ('{"a":', "}")])
+def test_deeply_nested_json_is_a_400_with_a_message(client, endpoint, opening, closing):
+    depth = 100_000  # far past Python's recursion limit (1000 by default)
+    body = '{"text": ' + opening * depth + "1" + closing * depth + "}"
+    response = client.post(endpoint, data=body, content_type="application/json")
+    assert response.status_code == 400
+    assert "nested too deeply" in response.get_json()["error"]
+    # and the server still answers normally afterwards
+    assert client.post(endpoint, json={"text": "1H NMR δ 7.26 (s, 1H)"}).status_code == 200
+
+
 def test_wrong_method_is_refused_as_json(client):
     response = client.get("/api/check")
     assert response.status_code == 405
@@ -206,7 +226,7 @@ def test_wrong_method_is_refused_as_json(client):
 
 
 def test_oversized_request_is_a_413_with_the_limit():
-    small = create_app(max_request_mb=0.01).test_client()  # 10 KiB
+    small = page_client(create_app(max_request_mb=0.01))  # 10 KiB
     response = small.post("/api/check", json={"text": "x" * 20_000})
     assert response.status_code == 413
     message = response.get_json()["error"]
@@ -216,7 +236,7 @@ def test_oversized_request_is_a_413_with_the_limit():
 
 
 def test_requests_under_the_limit_pass():
-    small = create_app(max_request_mb=0.01).test_client()
+    small = page_client(create_app(max_request_mb=0.01))
     assert small.post("/api/check", json={"text": "1H NMR δ 7.26 (s, 1H)"}).status_code == 200
 
 
@@ -293,7 +313,9 @@ def test_concurrent_requests_all_succeed():
 
     def call(endpoint):
         request = urllib.request.Request(f"http://127.0.0.1:{server.port}{endpoint}", data=body,
-                                         headers={"Content-Type": "application/json"})  # fmt: skip
+                                         headers={"Content-Type": "application/json",
+                                                  TOKEN_HEADER: server.app.config[
+                                                      "PEAKPROOF_TOKEN"]})  # fmt: skip
         try:
             with urllib.request.urlopen(request, timeout=60) as response:
                 results.append((response.status, endpoint))

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 import threading
 import urllib.request
 
@@ -81,10 +82,14 @@ def test_the_served_page_answers_over_http():
     try:
         base = f"http://127.0.0.1:{server.port}"
         with urllib.request.urlopen(base + "/", timeout=30) as response:
-            assert b"peakproof" in response.read()
+            page = response.read()
+        assert b"peakproof" in page
+        # the page's session token, which its script sends with every POST
+        token = re.search(rb'name="peakproof-token" content="([^"]+)"', page).group(1).decode()
         body = json.dumps({"text": "1H NMR (400 MHz, CDCl3) δ 3.82 (s, J = 1.2 Hz, 3H)"}).encode()
         request = urllib.request.Request(base + "/api/check", data=body,
-                                         headers={"Content-Type": "application/json"})  # fmt: skip
+                                         headers={"Content-Type": "application/json",
+                                                  peakproof.web.TOKEN_HEADER: token})  # fmt: skip
         with urllib.request.urlopen(request, timeout=30) as response:
             rules = [f["rule"] for f in json.load(response)["findings"]]
         assert "singlet-with-j" in rules  # a singlet cannot show a coupling (common practice)

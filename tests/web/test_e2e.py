@@ -272,3 +272,44 @@ def test_empty_input_asks_for_data(page):
     page.wait_for_selector("#alert:not([hidden])")
     assert "Paste" in page.text_content("#alert")
     assert page.locator("#results").is_hidden()
+
+
+def test_editing_after_a_check_marks_results_stale_and_disables_copy(page):
+    _check(page, demo_text())
+    assert page.is_enabled("#copy-button")
+    assert page.is_hidden("#stale-note")
+    assert "6.48" not in demo_text()
+    page.fill("#input", demo_text() + "\n1H NMR (400 MHz, CDCl3) δ 6.48 (s, 1H).")
+    assert page.is_visible("#stale-note")
+    assert not page.is_enabled("#copy-button")
+    assert page.evaluate("() => document.body.classList.contains('stale')")
+    # choosing another style re-checks the text in the box instead of the old one
+    page.select_option("#style-select", index=1)
+    wait_until(page, "() => !document.body.classList.contains('stale')")
+    wait_until(page, "() => document.getElementById('check-button').textContent === 'Check data'")
+    assert page.is_enabled("#copy-button") and page.is_hidden("#stale-note")
+    assert "6.48" in page.text_content("#formatted")
+    # undoing the edit back to the checked text is not stale either
+    checked = page.input_value("#input")
+    page.fill("#input", checked + " ")
+    assert not page.is_enabled("#copy-button")
+    page.fill("#input", checked)
+    assert page.is_enabled("#copy-button")
+
+
+def test_plot_is_cleared_while_another_compound_loads_and_fits_its_panel(page):
+    _check(page, demo_text())
+    wait_until(page, "() => !document.getElementById('plot').hidden")
+    old_src = page.get_attribute("#plot", "src")
+    options = page.eval_on_selector_all("#compound-select option", "os => os.map(o => o.value)")
+    other = next(v for v in options if v not in ("", page.input_value("#compound-select")))
+    page.select_option("#compound-select", other)
+    # straight after choosing: the old picture is gone, the status says it is being drawn
+    assert page.evaluate("() => document.getElementById('plot').hidden") or \
+        page.get_attribute("#plot", "src") != old_src
+    wait_until(page, "() => !document.getElementById('plot').hidden")
+    assert page.get_attribute("#plot", "src") != old_src
+    box = page.eval_on_selector(".plot-box", "b => b.getBoundingClientRect().toJSON()")
+    img = page.eval_on_selector("#plot", "i => i.getBoundingClientRect().toJSON()")
+    assert img["left"] >= box["left"] - 0.5 and img["right"] <= box["right"] + 0.5
+    assert page.eval_on_selector(".plot-box", "b => b.scrollWidth <= b.clientWidth")

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import ipaddress
 
-from .app import DEFAULT_MAX_MB, create_app
+from .app import DEFAULT_MAX_MB, TOKEN_HEADER, allow_hosts, create_app
 
-__all__ = ["DEFAULT_MAX_MB", "create_app", "is_loopback", "make_server"]
+__all__ = ["DEFAULT_MAX_MB", "TOKEN_HEADER", "allow_hosts", "create_app", "is_loopback", "make_server"]
 
 
 def is_loopback(host: str) -> bool:
@@ -31,7 +31,11 @@ def make_server(host: str = "127.0.0.1", port: int = 8765, max_request_mb: float
     with socket.socket(family, socket.SOCK_STREAM) as probe:
         probe.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
         probe.bind((host.strip("[]"), port))
+    app = create_app(max_request_mb)
     try:
-        return _make_server(host, port, create_app(max_request_mb), threaded=True)
+        server = _make_server(host, port, app, threaded=True)
     except SystemExit:
         raise OSError(f"cannot listen on {host}:{port}") from None
+    if is_loopback(host):  # elsewhere the machine's own names are not known here
+        allow_hosts(app, host, server.port)
+    return server

@@ -12,6 +12,7 @@ import io
 import functools
 import os
 import re
+import secrets
 import threading
 from typing import Any
 
@@ -36,18 +37,43 @@ _PARSER_RATIONALE = {
 }
 
 
-#: The parser keeps state between calls, so two requests must not parse at once: the server
-#: is threaded for the page's files, but engine work takes turns.
-_ENGINE_LOCK = threading.Lock()
+#: Parsing and checking are re-entrant (tests/test_parse_threads.py), so requests run at once.
+#: Matplotlib's font cache and settings are process-wide: only the drawing takes turns.
+_PLOT_LOCK = threading.Lock()
+#: Seconds a request may compute before the page is told to use the command line instead.
+TIME_BUDGET_S = 20.0
+_BUDGET_POOL = None
+_BUDGET_POOL_LOCK = threading.Lock()
+
+
+class TooLarge(Exception):
+    """Work that ran past :data:`TIME_BUDGET_S`: answered 413 with advice to use the CLI."""
 
 
 def _one_at_a_time(function):
-    @functools.wraps(function)
-    def locked(*args, **kwargs):
-        with _ENGINE_LOCK:
-            return function(*args, **kwargs)
+    """Run ``function`` within the request's time budget (the name is kept for history: calls
+    no longer wait for each other).  Past the budget the caller gets :class:`TooLarge`; the
+    abandoned work finishes in its pool thread and its result is dropped."""
 
-    return locked
+    @functools.wraps(function)
+    def budgeted(*args, **kwargs):
+        global _BUDGET_POOL
+        from concurrent.futures import ThreadPoolExecutor
+        from concurrent.futures import TimeoutError as FutureTimeout
+
+        with _BUDGET_POOL_LOCK:
+            if _BUDGET_POOL is None:
+                _BUDGET_POOL = ThreadPoolExecutor(max_workers=8,
+                                                  thread_name_prefix="peakproof-web")  # fmt: skip
+        future = _BUDGET_POOL.submit(function, *args, **kwargs)
+        try:
+            return future.result(timeout=TIME_BUDGET_S)
+        except FutureTimeout:
+            raise TooLarge(f"this text is too large for the page (not done within "
+                           f"{TIME_BUDGET_S:g} s); use the command line instead, e.g. "
+                           "'peakproof check FILE' or 'peakproof format FILE'") from None
+
+    return budgeted
 
 
 class InMemoryRequest(Request):
@@ -62,18 +88,59 @@ class BadInput(Exception):
     """A request the page can explain: answered 400 with ``str()`` as the message."""
 
 
+TOKEN_HEADER = "X-Peakproof-Token"
+_TOKEN_SLOT = "{{PEAKPROOF_TOKEN}}"
+_LOOPBACK_NAMES = ("localhost", "127.0.0.1", "[::1]")
+
+
 def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
-    """The Flask application; requests above ``max_request_mb`` megabytes get a 413."""
+    """The Flask application; requests above ``max_request_mb`` megabytes get a 413.
+
+    Closed to other sites: a request whose ``Host`` is not a loopback name is refused (403), and
+    once :func:`allow_hosts` has named the server's own ``host:port`` only those are accepted,
+    against DNS rebinding.  Every POST must come from this page: a foreign ``Origin`` or a
+    ``Sec-Fetch-Site`` other than ``same-origin``/``none`` is refused, and the per-session token
+    (``app.config["PEAKPROOF_TOKEN"]``, written into the page) must come in ``X-Peakproof-Token``.
+    """
     app = Flask(__name__, static_folder=None)
+    app.config["PEAKPROOF_TOKEN"] = secrets.token_urlsafe(24)
+    app.config["PEAKPROOF_HOSTS"] = None  # None: any loopback name, any port
     app.request_class = InMemoryRequest
     app.config["MAX_CONTENT_LENGTH"] = int(max_request_mb * 1024 * 1024)
     app.config["MAX_FORM_MEMORY_SIZE"] = int(max_request_mb * 1024 * 1024)
     app.json.ensure_ascii = False
     app.json.sort_keys = False
 
+    @app.before_request
+    def closed_to_other_sites():
+        host = (request.host or "").lower()
+        allowed = app.config["PEAKPROOF_HOSTS"]
+        name = host.rsplit(":", 1)[0] if not host.endswith("]") else host
+        if (host not in allowed) if allowed is not None else (name not in _LOOPBACK_NAMES):
+            return _error(403, f"this page answers only at its own address "
+                          f"({', '.join(sorted(allowed or _LOOPBACK_NAMES))}), not at "
+                          f"'{host}'; open the address 'peakproof serve' printed")
+        if request.method != "POST":
+            return None
+        origin = request.headers.get("Origin")
+        if origin is not None and origin.lower() != f"{request.scheme}://{host}":
+            return _error(403, f"requests from another site ({origin}) are refused; use the "
+                          "page itself")
+        fetch_site = request.headers.get("Sec-Fetch-Site")
+        if fetch_site is not None and fetch_site not in ("same-origin", "none"):
+            return _error(403, "requests from another site are refused; use the page itself")
+        sent = request.headers.get(TOKEN_HEADER, "")
+        if not secrets.compare_digest(sent.encode(), app.config["PEAKPROOF_TOKEN"].encode()):
+            return _error(403, "this request lacks the page's session token (the server may "
+                          "have been restarted): reload the page and try again")
+        return None
+
     @app.get("/")
     def index():
-        return _static_file("index.html")
+        with open(os.path.join(_STATIC, "index.html"), encoding="utf-8") as handle:
+            page = handle.read().replace(_TOKEN_SLOT, app.config["PEAKPROOF_TOKEN"])
+        return app.response_class(page, mimetype="text/html",
+                                  headers={"Cache-Control": "no-store"})  # fmt: skip
 
     @app.get("/favicon.ico")
     def favicon():
@@ -142,6 +209,10 @@ def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
     def bad_input(exc):
         return _error(400, str(exc))
 
+    @app.errorhandler(TooLarge)
+    def too_slow(exc):
+        return _error(413, str(exc))
+
     @app.errorhandler(RequestEntityTooLarge)
     def too_large(exc):
         return _error(413, f"the request is larger than the {max_request_mb:g} MB limit; split "
@@ -152,6 +223,17 @@ def create_app(max_request_mb: float = DEFAULT_MAX_MB) -> Flask:
         return _error(exc.code or 500, exc.description or exc.name)
 
     return app
+
+
+def allow_hosts(app: Flask, host: str, port: int) -> None:
+    """Accept only ``host:port`` (and, for a loopback host, the other loopback names at that
+    port) as the request's ``Host`` from now on."""
+    host = host.lower()
+    shown = f"[{host.strip('[]')}]" if ":" in host else host
+    names = {shown}
+    if shown in _LOOPBACK_NAMES or shown.startswith("127."):
+        names |= set(_LOOPBACK_NAMES)
+    app.config["PEAKPROOF_HOSTS"] = {f"{n}:{port}" for n in names}
 
 
 def _static_file(name: str):
@@ -169,7 +251,12 @@ def _json_body() -> dict[str, Any]:
     if not request.is_json:
         raise BadInput("send JSON (Content-Type: application/json), "
                        "e.g. {\"text\": \"1H NMR …\"}")
-    body = request.get_json(silent=True)
+    try:
+        body = request.get_json(silent=True)
+    except RecursionError:
+        # json's decoder recurses once per level; thousands of nested [ or { exhaust the stack
+        raise BadInput("the request's JSON is nested too deeply to read; send a flat object "
+                       "such as {\"text\": \"1H NMR …\"}") from None
     if body is None:
         raise BadInput("the request is not valid JSON")
     if not isinstance(body, dict):
@@ -317,15 +404,49 @@ def format_text(text: str, style_name: str | None, round_numbers: bool = False) 
 _TOKEN = re.compile(r"\s+|[\w.,]+|[^\w\s]", re.UNICODE)
 
 
+#: Beyond these the Changes tab shows whole lines (or stops) instead of finer detail.
+WORD_DIFF_MAX_TOKENS = 3000  # tokens in one line, either side
+LINE_MATCH_MAX_PAIRS = 4_000_000  # lines before × lines after in one changed stretch
+DIFF_MAX_ROWS = 2000
+
+
 def line_diff(before: str, after: str) -> list[dict[str, Any]]:
-    """Changed lines, each with word-level parts: ``{"op": "equal"|"del"|"ins", "text"}``."""
+    """Changed lines, each with word-level parts: ``{"op": "equal"|"del"|"ins", "text"}``.
+
+    The cost follows the size of the change: unchanged lines at both ends are cut off first,
+    a stretch with as many lines before as after is paired line by line, only a changed line
+    is split into words (and only when short enough, else shown whole), and after
+    :data:`DIFF_MAX_ROWS` rows a last row with ``"op": "cut"`` says how much was left out.
+    """
     a, b = before.split("\n"), after.split("\n")
+    head = 0
+    while head < min(len(a), len(b)) and a[head] == b[head]:
+        head += 1
+    tail = 0
+    while tail < min(len(a), len(b)) - head and a[-1 - tail] == b[-1 - tail]:
+        tail += 1
+    mid_a, mid_b = a[head : len(a) - tail], b[head : len(b) - tail]
+    if len(mid_a) == len(mid_b):
+        opcodes = [("replace", head + k, head + k + 1, head + k, head + k + 1)
+                   for k in range(len(mid_a)) if mid_a[k] != mid_b[k]]  # fmt: skip
+    elif len(mid_a) * len(mid_b) <= LINE_MATCH_MAX_PAIRS:
+        matcher = difflib.SequenceMatcher(None, mid_a, mid_b, autojunk=False)
+        opcodes = [(t, i1 + head, i2 + head, j1 + head, j2 + head)
+                   for t, i1, i2, j1, j2 in matcher.get_opcodes()]  # fmt: skip
+    else:
+        opcodes = [("replace", head, len(a) - tail, head, len(b) - tail)]
     rows: list[dict[str, Any]] = []
-    for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, a, b, autojunk=False).get_opcodes():
+    changed = sum(max(i2 - i1, j2 - j1) for t, i1, i2, j1, j2 in opcodes if t != "equal")
+    for tag, i1, i2, j1, j2 in opcodes:
         if tag == "equal":
             continue
         pairs = max(i2 - i1, j2 - j1)
         for k in range(pairs):
+            if len(rows) == DIFF_MAX_ROWS:
+                rows.append({"line": None, "parts": [{"op": "cut", "text":
+                    f"{changed - DIFF_MAX_ROWS} more changed lines are not shown here; "
+                    "the reformatted text above has them all"}]})  # fmt: skip
+                return rows
             old = a[i1 + k] if i1 + k < i2 else None
             new = b[j1 + k] if j1 + k < j2 else None
             rows.append({
@@ -341,6 +462,8 @@ def _word_parts(old: str | None, new: str | None) -> list[dict[str, str]]:
     if new is None:
         return [{"op": "del", "text": old}]
     x, y = _TOKEN.findall(old), _TOKEN.findall(new)
+    if max(len(x), len(y)) > WORD_DIFF_MAX_TOKENS:  # word matching is quadratic: whole lines
+        return _trim_common(old, new)
     parts: list[dict[str, str]] = []
     for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, x, y, autojunk=False).get_opcodes():
         if tag == "equal":
@@ -448,7 +571,9 @@ def _render_block_png(doc, block) -> bytes:
                 panels.append((title, simulate_implied(implied, "quantum"),
                                simulate_implied(implied, "first-order")))  # fmt: skip
         out = io.BytesIO()
-        plot_spectra(panels, out, width_px=PLOT_WIDTH_PX, height_px=PLOT_HEIGHT_PX * len(panels))
+        with _PLOT_LOCK:
+            plot_spectra(panels, out, width_px=PLOT_WIDTH_PX,
+                         height_px=PLOT_HEIGHT_PX * len(panels))
     except (PlotError, SpinSystemError) as exc:
         raise BadInput(f"the spectrum of {title} cannot be drawn: {exc}") from None
     return out.getvalue()

@@ -28,10 +28,13 @@
     $("alert").textContent = "";
   }
 
+  // the per-session token the server wrote into the page; every POST carries it
+  const TOKEN = document.querySelector('meta[name="peakproof-token"]').content;
+
   async function postJSON(url, body) {
     const response = await fetch(url, {
       method: "POST",
-      headers: { "Content-Type": "application/json" },
+      headers: { "Content-Type": "application/json", "X-Peakproof-Token": TOKEN },
       body: JSON.stringify(body),
     });
     return readAnswer(response);
@@ -79,6 +82,7 @@
       state.analysis = analysis;
       state.text = text;
       state.selected = null;
+      markStale();
       renderTotals();
       renderCompounds();
       renderMarked();
@@ -281,8 +285,22 @@
     $("style-description").textContent = chosen ? chosen.description : "";
   }
 
+  // Results belong to the text of the last check; once the box differs they are marked out of
+  // date and Copy is off, so nobody copies a mistake they have already fixed.
+  function markStale() {
+    const stale = Boolean(state.analysis) && $("input").value !== state.text;
+    document.body.classList.toggle("stale", stale);
+    $("stale-note").hidden = !stale;
+    $("copy-button").disabled = stale;
+    if (stale) $("copy-status").textContent = "";
+  }
+
   async function runFormat() {
     if (!state.analysis) return;
+    if ($("input").value !== state.text) {  // another style for edited text: check it first
+      await runCheck();
+      return;
+    }
     describeStyle();
     $("copy-status").textContent = "";
     try {
@@ -312,6 +330,7 @@
       const body = el("span", "diff-text");
       for (const part of row.parts) {
         if (part.op === "equal") body.append(document.createTextNode(part.text));
+        else if (part.op === "cut") body.append(el("em", "diff-cut", part.text));
         else body.append(el(part.op === "del" ? "del" : "ins", "", part.text));
       }
       line.append(body);
@@ -363,16 +382,21 @@
                                     : "Choose a compound with 1H NMR data.";
       return;
     }
+    // the last compound's plot must not stay under the new heading while this one loads
+    img.hidden = true;
+    img.removeAttribute("src");
     status.hidden = false;
     status.textContent = "Simulating…";
+    const request = (state.plotRequest = (state.plotRequest || 0) + 1);
     try {
       const response = await fetch("/api/plot", {
         method: "POST",
-        headers: { "Content-Type": "application/json" },
+        headers: { "Content-Type": "application/json", "X-Peakproof-Token": TOKEN },
         body: JSON.stringify({ text: state.text, block: compound.block }),
       });
       if (!response.ok) await readAnswer(response);
       const blob = await response.blob();
+      if (request !== state.plotRequest) return;  // a newer plot was asked for meanwhile
       if (state.plotUrl) URL.revokeObjectURL(state.plotUrl);
       state.plotUrl = URL.createObjectURL(blob);
       img.alt = `Simulated 1H NMR spectrum of ${compound.label}`;
@@ -380,6 +404,7 @@
       img.hidden = false;
       status.hidden = true;
     } catch (error) {
+      if (request !== state.plotRequest) return;
       img.hidden = true;
       status.textContent = `Could not draw the spectrum: ${error.message}`;
     }
@@ -417,7 +442,9 @@
     const form = new FormData();
     form.append("file", file);
     try {
-      const response = await fetch("/api/upload", { method: "POST", body: form });
+      const response = await fetch("/api/upload", {
+        method: "POST", headers: { "X-Peakproof-Token": TOKEN }, body: form,
+      });
       const payload = await readAnswer(response);
       $("input").value = payload.text;
       $("file-name").textContent = `${payload.name} (${payload.format})`;
@@ -436,6 +463,7 @@
       if (event.key === "Enter" && (event.ctrlKey || event.metaKey)) runCheck();
     });
     $("file-input").addEventListener("change", openFile);
+    $("input").addEventListener("input", markStale);
     $("style-select").addEventListener("change", runFormat);
     $("copy-button").addEventListener("click", copyResult);
     $("tab-result").addEventListener("click", () => showTab("result"));
