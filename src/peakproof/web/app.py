@@ -8,8 +8,8 @@ bytes but never a path, and every error is a JSON ``{"error": message}`` a perso
 from __future__ import annotations
 
 import difflib
-import io
 import functools
+import io
 import os
 import re
 import secrets
