@@ -11,7 +11,11 @@ from peakproof.web.app import create_app  # noqa: E402
 
 @pytest.fixture()
 def client():
-    return create_app().test_client()
+    # sends the page's per-session token, as the page's own script does
+    app = create_app()
+    client = app.test_client()
+    client.environ_base["HTTP_X_PEAKPROOF_TOKEN"] = app.config["PEAKPROOF_TOKEN"]
+    return client
 
 
 # JSON allows "\ud800" (a lone UTF-16 surrogate, e.g. half an emoji cut by a clipboard); the
