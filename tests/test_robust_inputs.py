@@ -78,3 +78,14 @@ def test_a_bug_anywhere_in_a_command_is_a_line_and_exit_4_not_a_traceback(tmp_pa
     assert main(["check", str(path)]) == EXIT_INTERNAL == 4
     err = capsys.readouterr().err
     assert "internal-error: RuntimeError: deliberate" in err and "Traceback" not in err
+
+
+def test_unreadable_analysis_formula_is_a_finding_not_silence():
+    """A 5000-digit count is refused by the formula reader; the check says the analysis went
+    unchecked instead of passing it in silence."""
+    import peakproof
+
+    text = "Anal. Calcd for C" + "1" * 5000 + "H10O2: C, 70.1; H, 6.2. Found: C, 70.0; H, 6.3."
+    [d] = [d for d in peakproof.check(text).diagnostics if d.rule == "formula-unreadable"]
+    assert d.severity == "warning" and "5000 digits" in d.message and "\n" not in d.message
+    assert len(d.message) < 300

@@ -62,3 +62,34 @@ class FormulaMismatch(Rule):
                     reference=reference.hill(), reference_source=ctx.formula_source,
                     data={"formula": formula.hill(), "reference": reference.hill(), "reference_source": ctx.formula_source},
                 )
+
+
+class FormulaUnreadable(Rule):
+    """A formula after 'calcd for' or in an analysis that cannot be read is said so, once."""
+
+    name = "formula-unreadable"
+    code = "PP902"
+    severity = "warning"
+    message = "the formula {formula} cannot be read ({reason}); the values computed from it are not checked"
+    rationale = (
+        "HRMS and elemental-analysis values are checked against the formula written with them; "
+        "a formula that cannot be read (an unknown element symbol, a count of impossible length) "
+        "leaves those values unchecked, which a reader should know rather than take for a pass."
+    )
+    source = "common practice"
+    examples = (
+        ("fail", "Anal. Calcd for C12H12Q2: C, 70.6; H, 5.9. Found: C, 70.5; H, 6.0."),
+        ("pass", "Anal. Calcd for C12H12O3: C, 70.58; H, 5.92. Found: C, 70.51; H, 5.99."),
+    )
+
+    def check(self, block, ctx):
+        for item in (*block.mass_spec, *block.analyses):
+            if not item.formula:
+                continue
+            try:
+                parse_formula(item.formula)
+            except FormulaError as exc:
+                shown = item.formula if len(item.formula) <= 40 else item.formula[:37] + "…"
+                reason = str(exc).splitlines()[0] if str(exc) else "unreadable"
+                yield self.finding(item.formula_span or item.span, formula=shown, reason=reason,
+                                   data={"formula": item.formula[:200]})
